@@ -1,0 +1,559 @@
+//! The chumsky parser: tokens to a [`SourceFile`] plus every syntax error found.
+//!
+//! Parsing never fails. Bad members are skipped up to the next thing that
+//! parses, bad blocks and parentheses are replaced by error nodes, and nesting
+//! beyond [`MAX_NESTING`] is cut out before parsing so that the recursive
+//! descent cannot exhaust the stack.
+
+use crate::ast::*;
+use crate::lexer::{Comment, NumberToken, Token, lex};
+use crate::Span;
+use chumsky::input::ValueInput;
+use chumsky::prelude::*;
+
+/// Deepest nesting of `(` and `{` the parser accepts; deeper input is one error.
+pub const MAX_NESTING: usize = 48;
+
+/// Most syntax errors reported for one file; the rest are counted in a final error.
+pub const MAX_ERRORS: usize = 50;
+
+/// A syntax error with the span it points at.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SyntaxError {
+    pub span: Span,
+    /// One sentence for the headline, e.g. "unexpected `}`, expected a value".
+    pub message: String,
+    /// A short text for the label under the span.
+    pub label: String,
+}
+
+/// The result of parsing: always a tree (possibly partial) and the errors.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Parse {
+    pub file: SourceFile,
+    pub errors: Vec<SyntaxError>,
+}
+
+type Extra<'t, 's> = extra::Err<Rich<'t, Token<'s>, SimpleSpan>>;
+
+fn range(span: SimpleSpan) -> Span {
+    span.into_range()
+}
+
+/// Parses a whole file. Never panics; every error carries a span inside `source`.
+pub fn parse(source: &str) -> Parse {
+    let (tokens, comments) = lex(source);
+    let (tokens, mut errors) = limit_nesting(tokens);
+    let eoi: SimpleSpan = (source.len()..source.len()).into();
+    let tokens: Vec<(Token<'_>, SimpleSpan)> =
+        tokens.into_iter().map(|(t, s)| (t, s.into())).collect();
+    let (items, rich) = file_parser(source)
+        .parse(tokens.as_slice().map(eoi, |(t, s)| (t, s)))
+        .into_output_errors();
+    errors.extend(rich.into_iter().map(|e| to_syntax_error(source, e)));
+    errors.sort_by_key(|e| (e.span.start, e.span.end));
+    errors.dedup_by(|a, b| a.span == b.span);
+    if errors.len() > MAX_ERRORS {
+        let hidden = errors.len() - MAX_ERRORS;
+        let span = errors[MAX_ERRORS].span.clone();
+        errors.truncate(MAX_ERRORS);
+        errors.push(SyntaxError {
+            span,
+            message: format!("{hidden} more syntax errors in this file are not shown"),
+            label: "first error not shown".to_string(),
+        });
+    }
+    Parse {
+        file: SourceFile {
+            items: items.unwrap_or_default(),
+            comments: comments.into_iter().collect::<Vec<Comment>>(),
+        },
+        errors,
+    }
+}
+
+/// Replaces every run of tokens nested deeper than [`MAX_NESTING`] by one error token.
+fn limit_nesting(tokens: Vec<(Token<'_>, Span)>) -> (Vec<(Token<'_>, Span)>, Vec<SyntaxError>) {
+    let mut out = Vec::with_capacity(tokens.len());
+    let mut errors = Vec::new();
+    let mut depth = 0usize;
+    let mut cut: Option<(usize, Span)> = None; // depth at which the cut began, and its span
+    for (tok, span) in tokens {
+        let opens = matches!(tok, Token::LParen | Token::LBrace);
+        let closes = matches!(tok, Token::RParen | Token::RBrace);
+        if opens {
+            depth += 1;
+        }
+        if let Some((start_depth, cut_span)) = &mut cut {
+            cut_span.end = span.end;
+            if closes {
+                depth = depth.saturating_sub(1);
+                if depth < *start_depth {
+                    let (_, s) = cut.take().unwrap_or((0, span.clone()));
+                    errors.push(SyntaxError {
+                        span: s.clone(),
+                        message: format!("nesting deeper than {MAX_NESTING} levels"),
+                        label: "too deeply nested; simplify this expression".to_string(),
+                    });
+                    out.push((Token::Error, s));
+                }
+            }
+            continue;
+        }
+        if opens && depth > MAX_NESTING {
+            cut = Some((depth, span));
+            continue;
+        }
+        if closes {
+            depth = depth.saturating_sub(1);
+        }
+        out.push((tok, span));
+    }
+    if let Some((_, s)) = cut {
+        errors.push(SyntaxError {
+            span: s.clone(),
+            message: format!("nesting deeper than {MAX_NESTING} levels, never closed"),
+            label: "too deeply nested".to_string(),
+        });
+        out.push((Token::Error, s));
+    }
+    (out, errors)
+}
+
+fn to_syntax_error(source: &str, err: Rich<'_, Token<'_>, SimpleSpan>) -> SyntaxError {
+    let span = range(*err.span());
+    match err.reason() {
+        chumsky::error::RichReason::Custom(msg) => SyntaxError {
+            span,
+            message: msg.clone(),
+            label: msg.split(';').next().unwrap_or(msg).to_string(),
+        },
+        chumsky::error::RichReason::ExpectedFound { .. } => {
+            let found = match err.found() {
+                Some(_) => token_text(source, *err.span()),
+                None => "end of file".to_string(),
+            };
+            let mut expected: Vec<String> = err
+                .expected()
+                .map(|p| p.to_string().trim_matches('\'').to_string())
+                .collect();
+            expected.sort();
+            expected.dedup();
+            expected.retain(|e| e != "end of input" || err.found().is_some());
+            let list = match expected.len() {
+                0 => String::new(),
+                1 => format!(", expected {}", expected[0]),
+                n if n <= 6 => format!(
+                    ", expected {} or {}",
+                    expected[..n - 1].join(", "),
+                    expected[n - 1]
+                ),
+                _ => format!(", expected {} or another token", expected[..5].join(", ")),
+            };
+            SyntaxError {
+                span,
+                message: format!("unexpected {found}{list}"),
+                label: format!("unexpected {found}"),
+            }
+        }
+    }
+}
+
+/// The source text of a span in backticks, shortened, for messages.
+fn token_text(source: &str, span: SimpleSpan) -> String {
+    let text = source.get(span.start..span.end).unwrap_or("");
+    let text: String = text.chars().take(24).collect();
+    if text.trim().is_empty() {
+        "end of file".to_string()
+    } else if text.chars().any(|c| c.is_control()) {
+        format!("`{}`", text.escape_debug())
+    } else {
+        format!("`{text}`")
+    }
+}
+
+fn number_expr(source: &str, token: NumberToken, span: SimpleSpan) -> Expr {
+    let text = &source[span.start..span.end];
+    let value = text[..token.number_len].parse::<f64>().unwrap_or(f64::NAN);
+    let unit = token.unit_start.map(|start| Ident {
+        text: text[start..].to_string(),
+        span: span.start + start..span.end,
+    });
+    Expr {
+        kind: ExprKind::Number { value, unit },
+        span: range(span),
+    }
+}
+
+fn negate(inner: Expr, span: Span) -> Expr {
+    match inner.kind {
+        ExprKind::Number { value, unit } => Expr {
+            kind: ExprKind::Number { value: -value, unit },
+            span,
+        },
+        kind => Expr {
+            kind: ExprKind::Neg(Box::new(Expr { kind, span: inner.span })),
+            span,
+        },
+    }
+}
+
+fn file_parser<'t, 's: 't, I>(
+    source: &'s str,
+) -> impl Parser<'t, I, Vec<Item>, Extra<'t, 's>> + Clone
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+{
+    let ident = select! { Token::Ident(s) = e => Ident { text: s.to_string(), span: range(e.span()) } }
+        .labelled("a name");
+
+    let number = select! { Token::Number(n) = e => (n, e.span()) }
+        .map(move |(n, span)| number_expr(source, n, span))
+        .labelled("a number");
+
+    let expr = recursive(|expr| {
+        let literal = number
+            .clone()
+            .or(select! { Token::True => true, Token::False => false }
+                .map_with(|b, e| Expr { kind: ExprKind::Bool(b), span: range(e.span()) }))
+            .or(select! { Token::Str(s) = e => Expr {
+                kind: ExprKind::Str(s.trim_matches('"').to_string()),
+                span: range(e.span()),
+            } });
+
+        let args = expr
+            .clone()
+            .separated_by(just(Token::Comma))
+            .allow_trailing()
+            .collect::<Vec<Expr>>()
+            .delimited_by(just(Token::LParen), just(Token::RParen));
+
+        let path_or_call = ident
+            .clone()
+            .separated_by(just(Token::Dot))
+            .at_least(1)
+            .collect::<Vec<Ident>>()
+            .then(args.or_not())
+            .try_map_with(|(path, args), e| {
+                let span = range(e.span());
+                match args {
+                    None => Ok(Expr { kind: ExprKind::Path(path), span }),
+                    Some(args) if path.len() == 1 => {
+                        let name = path.into_iter().next().expect("at least one segment");
+                        Ok(Expr { kind: ExprKind::Call(name, args), span })
+                    }
+                    Some(_) => Err(Rich::custom(e.span(), "only plain function names can be called")),
+                }
+            });
+
+        let paren = expr
+            .clone()
+            .delimited_by(just(Token::LParen), just(Token::RParen))
+            .map_with(|inner, e| Expr { kind: ExprKind::Paren(Box::new(inner)), span: range(e.span()) })
+            .recover_with(via_parser(nested_delimiters(
+                Token::LParen,
+                Token::RParen,
+                [(Token::LBrace, Token::RBrace)],
+                |span| Expr { kind: ExprKind::Error, span: range(span) },
+            )));
+
+        let atom = literal.or(paren).or(path_or_call).labelled("a value");
+
+        let bare_tolerance = just(Token::PlusMinus)
+            .ignore_then(atom.clone())
+            .map_with(|tol, e| Expr {
+                kind: ExprKind::Tolerance {
+                    base: None,
+                    plus: Box::new(tol.clone()),
+                    minus: Box::new(tol),
+                    symmetric: true,
+                },
+                span: range(e.span()),
+            });
+
+        let primary = bare_tolerance.or(atom.clone());
+
+        let unary = just(Token::Minus)
+            .map_with(|_, e| range(e.span()))
+            .repeated()
+            .foldr(primary, |minus_span, inner| {
+                let span = minus_span.start..inner.span.end;
+                negate(inner, span)
+            });
+
+        // `+10 % -20 %`: both signs written against their numbers.
+        let signed = |sign: Token<'s>| {
+            just(sign)
+                .map_with(|_, e| range(e.span()))
+                .then(number.clone())
+                .try_map(|(sign_span, n), span| {
+                    if sign_span.end == n.span.start {
+                        Ok(n)
+                    } else {
+                        Err(Rich::custom(span, "asymmetric tolerance sign must touch its number"))
+                    }
+                })
+        };
+        let tolerance_suffix = just(Token::PlusMinus)
+            .ignore_then(unary.clone())
+            .map(|t| (t.clone(), t, true))
+            .or(signed(Token::Plus)
+                .then(signed(Token::Minus))
+                .map(|(p, m)| (p, m, false)));
+
+        let toleranced = unary
+            .then(tolerance_suffix.or_not())
+            .map_with(|(base, tol), e| match tol {
+                None => base,
+                Some((plus, minus, symmetric)) => Expr {
+                    kind: ExprKind::Tolerance {
+                        base: Some(Box::new(base)),
+                        plus: Box::new(plus),
+                        minus: Box::new(minus),
+                        symmetric,
+                    },
+                    span: range(e.span()),
+                },
+            });
+
+        let product_op = just(Token::Star).to(BinaryOp::Mul).or(just(Token::Slash).to(BinaryOp::Div));
+        let product = toleranced.clone().foldl_with(
+            product_op.then(toleranced).repeated(),
+            |a, (op, b), e| Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span: range(e.span()) },
+        );
+
+        let sum_op = just(Token::Plus).to(BinaryOp::Add).or(just(Token::Minus).to(BinaryOp::Sub));
+        let sum = product.clone().foldl_with(
+            sum_op.then(product).repeated(),
+            |a, (op, b), e| Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span: range(e.span()) },
+        );
+
+        sum.clone()
+            .then(just(Token::DotDot).ignore_then(sum).or_not())
+            .map_with(|(lo, hi), e| match hi {
+                None => lo,
+                Some(hi) => Expr {
+                    kind: ExprKind::Range(Box::new(lo), Box::new(hi)),
+                    span: range(e.span()),
+                },
+            })
+            .labelled("a value")
+    });
+
+    let relation = select! {
+        Token::Assign => Relation::Assign,
+        Token::Le => Relation::AtMost,
+        Token::Ge => Relation::AtLeast,
+        Token::Lt => Relation::Below,
+        Token::Gt => Relation::Above,
+    }
+    .labelled("`=`");
+
+    // What starts a member: a name, an optional second name, then `=`, a relation or `{`.
+    let member_start = ident
+        .clone()
+        .then(ident.clone().or_not())
+        .then(relation.clone().ignored().or(just(Token::LBrace).ignored()))
+        .ignored();
+
+    // A value that failed to parse: swallow up to the next member or `}`.
+    let bad_value = any()
+        .and_is(member_start.clone().not())
+        .and_is(just(Token::RBrace).not())
+        .repeated()
+        .map_with(|_, e| Expr { kind: ExprKind::Error, span: range(e.span()) });
+
+    // Tokens that start no member: one error for the whole run, then parsing goes on.
+    let junk_member = any()
+        .and_is(just(Token::RBrace).not())
+        .map_with(move |_, e| token_text(source, e.span()))
+        .then_ignore(
+            any()
+                .and_is(member_start.clone().not())
+                .and_is(just(Token::RBrace).not())
+                .repeated(),
+        )
+        .validate(|first, e, emitter| {
+            emitter.emit(Rich::custom(
+                e.span(),
+                format!("unexpected {first}; a field looks like `name = value` and a block like `name {{ ... }}`"),
+            ));
+            Member::Error(range(e.span()))
+        });
+
+    let member = recursive(|member| {
+        let body = member
+            .repeated()
+            .collect::<Vec<Member>>()
+            .delimited_by(just(Token::LBrace), just(Token::RBrace))
+            .recover_with(via_parser(nested_delimiters(
+                Token::LBrace,
+                Token::RBrace,
+                [(Token::LParen, Token::RParen)],
+                |_| Vec::new(),
+            )));
+
+        enum Tail {
+            Value(Relation, Expr),
+            Body(Vec<Member>),
+        }
+
+        ident
+            .clone()
+            .then(ident.clone().or_not())
+            .then(
+                relation
+                    .then(expr.clone().recover_with(via_parser(bad_value)))
+                    .map(|(r, v)| Tail::Value(r, v))
+                    .or(body.map(Tail::Body)),
+            )
+            .map_with(|((keyword, name), tail), e| match tail {
+                Tail::Value(relation, value) => Member::Field(Field {
+                    keyword,
+                    name,
+                    relation,
+                    value,
+                    span: range(e.span()),
+                }),
+                Tail::Body(members) => Member::Block(Block {
+                    keyword,
+                    name,
+                    members,
+                    span: range(e.span()),
+                }),
+            })
+            .labelled("a field")
+            .or(junk_member)
+    });
+
+    let block_body = member
+        .repeated()
+        .collect::<Vec<Member>>()
+        .delimited_by(just(Token::LBrace), just(Token::RBrace))
+        .recover_with(via_parser(nested_delimiters(
+            Token::LBrace,
+            Token::RBrace,
+            [(Token::LParen, Token::RParen)],
+            |_| Vec::new(),
+        )));
+
+    let use_item = just(Token::Use)
+        .ignore_then(select! { Token::Str(s) = e => (s, e.span()) }.labelled("a quoted path"))
+        .map_with(|(path, path_span), e| {
+            Item::Use(UseItem {
+                path: path.trim_matches('"').to_string(),
+                path_span: range(path_span),
+                span: range(e.span()),
+            })
+        });
+
+    let block_item = ident
+        .clone()
+        .then(ident.or_not())
+        .then(block_body)
+        .map_with(|((keyword, name), members), e| {
+            Item::Block(Block { keyword, name, members, span: range(e.span()) })
+        });
+
+    let item_start = just(Token::Use)
+        .ignored()
+        .or(ident.clone().then(ident.clone().or_not()).then(just(Token::LBrace)).ignored());
+    let junk_item = any()
+        .map_with(move |_, e| token_text(source, e.span()))
+        .then_ignore(any().and_is(item_start.not()).repeated())
+        .validate(|first, e, emitter| {
+            emitter.emit(Rich::custom(
+                e.span(),
+                format!("unexpected {first}; expected `regulator NAME {{ ... }}`, `process NAME {{ ... }}` or `use \"file.guard\"`"),
+            ));
+            Item::Error(range(e.span()))
+        });
+
+    use_item
+        .or(block_item)
+        .or(junk_item)
+        .repeated()
+        .collect::<Vec<Item>>()
+        .then_ignore(end())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn fields(src: &str) -> Vec<Field> {
+        let p = parse(src);
+        assert!(p.errors.is_empty(), "{:?}", p.errors);
+        match &p.file.items[0] {
+            Item::Block(b) => b
+                .members
+                .iter()
+                .filter_map(|m| match m {
+                    Member::Field(f) => Some(f.clone()),
+                    _ => None,
+                })
+                .collect(),
+            _ => panic!("not a block"),
+        }
+    }
+
+    #[test]
+    fn parses_a_small_regulator() {
+        let src = "regulator r {\n supply = 3.0 V .. 4.2 V\n output = 2.8 V ± 1.5 %\n pin vout { off_chip = true capacitance = 2.2 uF ± 20 % }\n}";
+        let p = parse(src);
+        assert!(p.errors.is_empty(), "{:?}", p.errors);
+        let Item::Block(b) = &p.file.items[0] else { panic!() };
+        assert_eq!(b.keyword.text, "regulator");
+        assert_eq!(b.name.as_ref().unwrap().text, "r");
+        assert_eq!(b.members.len(), 3);
+    }
+
+    #[test]
+    fn minus_folds_into_literals() {
+        let f = fields("r x { ambient = -20 °C .. 70 °C }");
+        let ExprKind::Range(lo, _) = &f[0].value.kind else { panic!() };
+        assert!(matches!(lo.kind, ExprKind::Number { value, .. } if value == -20.0));
+    }
+
+    #[test]
+    fn asymmetric_tolerance_needs_touching_signs() {
+        let f = fields("r x { a = 1 A +10 % -20 %\n b = c + 10 % - 20 % }");
+        assert!(matches!(f[0].value.kind, ExprKind::Tolerance { symmetric: false, .. }));
+        assert!(matches!(f[1].value.kind, ExprKind::Binary(BinaryOp::Sub, _, _)));
+    }
+
+    #[test]
+    fn precedence_and_paths() {
+        let f = fields("r x { t = ratio * reference + 1 mA\n u = min(a.b.max, 2 A)\n m = ± 8 % }");
+        assert!(matches!(f[0].value.kind, ExprKind::Binary(BinaryOp::Add, _, _)));
+        assert!(matches!(&f[1].value.kind, ExprKind::Call(n, args) if n.text == "min" && args.len() == 2));
+        assert!(matches!(f[2].value.kind, ExprKind::Tolerance { base: None, .. }));
+    }
+
+    #[test]
+    fn statements_with_names_and_relations() {
+        let f = fields("r x { expect current <= 400 mA\n force vout = 1.5 V }");
+        assert_eq!(f[0].relation, Relation::AtMost);
+        assert_eq!(f[0].key().text, "current");
+        assert_eq!(f[1].keyword.text, "force");
+    }
+
+    #[test]
+    fn recovers_and_reports_every_error() {
+        let src = "regulator a {\n supply = \n output = 2 V\n load = * 3\n}\nregulator b { x = 1 V }";
+        let p = parse(src);
+        assert!(p.errors.len() >= 2, "{:?}", p.errors);
+        assert_eq!(p.file.items.len(), 2);
+        for e in &p.errors {
+            assert!(e.span.end <= src.len());
+        }
+    }
+
+    #[test]
+    fn deep_nesting_is_cut_not_overflowed() {
+        let depth = 10_000;
+        let src = format!("regulator r {{ x = {}1{} }}", "(".repeat(depth), ")".repeat(depth));
+        let p = parse(&src);
+        assert!(p.errors.iter().any(|e| e.message.contains("nesting deeper")));
+    }
+}
