@@ -1,1 +1,164 @@
-fn main(){}
+//! The `guardband` command: a thin layer that finds files, runs the model and
+//! the rules, and prints diagnostics for people (ariadne) or tools (JSON).
+
+mod collect;
+mod render;
+
+use clap::{Parser, Subcommand, ValueEnum};
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+/// Checks the protection requirements of regulator blocks written as `.guard` specs.
+#[derive(Parser)]
+#[command(name = "guardband", version, about)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Format {
+    Human,
+    Json,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Deny {
+    Warnings,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Check .guard files or folders (default: the current folder).
+    Check {
+        /// Files or folders; folders are searched recursively for *.guard.
+        paths: Vec<PathBuf>,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+        /// Also fail (exit 1) on warnings.
+        #[arg(long, value_enum)]
+        deny: Option<Deny>,
+    },
+    /// Print a rule's documentation.
+    Explain {
+        /// The rule name, e.g. `limit-within-load`.
+        rule: Option<String>,
+        /// List all rules.
+        #[arg(long)]
+        list: bool,
+        /// Output format (for --list).
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+    },
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let _ = e.print();
+            return if e.use_stderr() { ExitCode::from(2) } else { ExitCode::SUCCESS };
+        }
+    };
+    match cli.command {
+        Command::Check { paths, format, deny } => check(paths, format, deny.is_some()),
+        Command::Explain { rule, list, format } => explain(rule, list, format),
+    }
+}
+
+fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
+    let cwd = match std::env::current_dir() {
+        Ok(d) => d,
+        Err(e) => {
+            eprintln!("guardband: cannot read the current folder: {e}");
+            return ExitCode::from(2);
+        }
+    };
+    let paths = if paths.is_empty() { vec![cwd.clone()] } else { paths };
+    let files = match collect::guard_files(&paths) {
+        Ok(f) => f,
+        Err(msg) => {
+            eprintln!("guardband: {msg}");
+            return ExitCode::from(2);
+        }
+    };
+    let root = collect::workspace_root(&paths[0], &cwd);
+    let mut diagnostics = Vec::new();
+    let mut ws = match guardband_model::load(&root, &files, &mut diagnostics) {
+        Ok(ws) => ws,
+        Err((path, e)) => {
+            eprintln!("guardband: cannot read {}: {e}", path.display());
+            return ExitCode::from(2);
+        }
+    };
+    let (config, config_diagnostics) = guardband_rules::Config::load(&mut ws);
+    diagnostics.extend(config_diagnostics);
+    let (model, model_diagnostics) = guardband_model::check(&ws);
+    diagnostics.extend(model_diagnostics);
+    diagnostics = guardband_rules::analyse(&ws, &model, &config, diagnostics);
+    diagnostics.sort_by(|a, b| {
+        (ws.file(a.file).display.as_str(), a.span.start, a.span.end, a.rule)
+            .cmp(&(ws.file(b.file).display.as_str(), b.span.start, b.span.end, b.rule))
+    });
+    let files_checked = ws.files.iter().filter(|f| f.path.extension().is_some_and(|e| e == "guard")).count();
+    let errors = diagnostics.iter().filter(|d| d.severity == guardband_model::Severity::Error).count();
+    let warnings = diagnostics.iter().filter(|d| d.severity == guardband_model::Severity::Warning).count();
+    let deny = deny_warnings || config.deny_warnings;
+    let written = match format {
+        Format::Human => render::human(&ws, &diagnostics, files_checked),
+        Format::Json => render::json(&ws, &diagnostics, files_checked),
+    };
+    if let Err(e) = written {
+        if e.kind() != std::io::ErrorKind::BrokenPipe {
+            eprintln!("guardband: cannot write output: {e}");
+            return ExitCode::from(2);
+        }
+    }
+    if errors > 0 || (deny && warnings > 0) {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    }
+}
+
+fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
+    let rules = guardband_rules::registry();
+    if list || rule.is_none() {
+        if format == Format::Json {
+            let entries: Vec<serde_json::Value> = rules
+                .iter()
+                .map(|r| {
+                    serde_json::json!({
+                        "name": r.name,
+                        "default_severity": r.default_severity.map(|s| s.as_str()).unwrap_or("off"),
+                        "summary": r.summary,
+                    })
+                })
+                .collect();
+            println!("{}", serde_json::to_string_pretty(&entries).unwrap_or_default());
+        } else {
+            let width = rules.iter().map(|r| r.name.len()).max().unwrap_or(0);
+            for r in rules {
+                let sev = r.default_severity.map(|s| s.as_str()).unwrap_or("off");
+                println!("{:width$}  {:7}  {}", r.name, sev, r.summary);
+            }
+        }
+        return ExitCode::SUCCESS;
+    }
+    let name = rule.unwrap_or_default();
+    match rules.iter().find(|r| r.name == name) {
+        Some(r) => {
+            println!("{}", r.explain());
+            ExitCode::SUCCESS
+        }
+        None => {
+            let names: Vec<&str> = rules.iter().map(|r| r.name).collect();
+            let hint = guardband_model::did_you_mean(&name, names.iter().copied())
+                .map(|s| format!("; did you mean `{s}`?"))
+                .unwrap_or_default();
+            eprintln!("guardband: no rule named `{name}`{hint} (see `guardband explain --list`)");
+            ExitCode::from(2)
+        }
+    }
+}

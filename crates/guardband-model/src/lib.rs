@@ -1,1 +1,43 @@
-//! placeholder
+//! The model of a guardband workspace: files loaded and imported, names
+//! resolved, every value evaluated to min / nominal / max with the stated
+//! tolerances it depends on, and the diagnostics found on the way.
+//!
+//! The model never sees an LSP position or a terminal; spans are bytes.
+
+mod build;
+mod diagnostic;
+mod eval;
+pub mod model;
+pub mod schema;
+mod suggest;
+pub mod value;
+mod workspace;
+
+pub use diagnostic::{Diagnostic, FileId, Label, Severity};
+pub use eval::visible_items;
+pub use model::{Field, FieldValue, Model, Node, NodeId};
+pub use schema::BlockKind;
+pub use suggest::{did_you_mean, edit_distance};
+pub use value::{Corner, SourceId, Term, ToleranceSource, Value, ValueError};
+pub use workspace::{SourceFile, Workspace, decode, load, normalize};
+
+use guardband_syntax::SyntaxError;
+
+/// Turns a syntax error into a diagnostic of rule `syntax`.
+pub fn syntax_diagnostic(file: FileId, err: &SyntaxError) -> Diagnostic {
+    Diagnostic::error("syntax", file, err.span.clone(), err.message.clone()).primary(err.label.clone())
+}
+
+/// Builds and evaluates the model of a loaded workspace.
+///
+/// Returns the model and every diagnostic: syntax errors of each file first,
+/// then schema and evaluation problems. Never panics on any input.
+pub fn check(ws: &Workspace) -> (Model, Vec<Diagnostic>) {
+    let mut diagnostics = Vec::new();
+    for file in &ws.files {
+        diagnostics.extend(file.parse.errors.iter().map(|e| syntax_diagnostic(file.id, e)));
+    }
+    let mut model = build::build(ws, &mut diagnostics);
+    eval::evaluate(ws, &mut model, &mut diagnostics);
+    (model, diagnostics)
+}

@@ -1,0 +1,96 @@
+//! The diagnostic type shared by the model, the rules and the front ends.
+
+use guardband_syntax::Span;
+
+/// Index of a loaded file in the [`crate::Workspace`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct FileId(pub u32);
+
+/// How serious a diagnostic is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Severity {
+    Info,
+    Warning,
+    Error,
+}
+
+impl Severity {
+    /// The lower-case name used in output and configuration.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Severity::Info => "info",
+            Severity::Warning => "warning",
+            Severity::Error => "error",
+        }
+    }
+}
+
+/// A secondary location with a message.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Label {
+    pub file: FileId,
+    pub span: Span,
+    pub message: String,
+}
+
+/// One finding: which rule, where, what, and how to fix it. Positions are byte spans.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Diagnostic {
+    /// Stable kebab-case rule name (`unit-mismatch`, `limit-within-load`, ...).
+    pub rule: &'static str,
+    pub severity: Severity,
+    pub file: FileId,
+    pub span: Span,
+    pub message: String,
+    /// The primary label (under `span`) comes first.
+    pub labels: Vec<Label>,
+    pub help: Option<String>,
+}
+
+impl Diagnostic {
+    /// An error with a primary label at `span`.
+    pub fn error(rule: &'static str, file: FileId, span: Span, message: impl Into<String>) -> Self {
+        Diagnostic {
+            rule,
+            severity: Severity::Error,
+            file,
+            span,
+            message: message.into(),
+            labels: Vec::new(),
+            help: None,
+        }
+    }
+
+    /// Same as [`Diagnostic::error`] with another severity.
+    pub fn with_severity(mut self, severity: Severity) -> Self {
+        self.severity = severity;
+        self
+    }
+
+    /// Adds the label under the primary span.
+    pub fn primary(mut self, message: impl Into<String>) -> Self {
+        let label = Label {
+            file: self.file,
+            span: self.span.clone(),
+            message: message.into(),
+        };
+        self.labels.insert(0, label);
+        self
+    }
+
+    /// Adds a secondary label.
+    pub fn label(mut self, file: FileId, span: Span, message: impl Into<String>) -> Self {
+        self.labels.push(Label {
+            file,
+            span,
+            message: message.into(),
+        });
+        self
+    }
+
+    /// Sets the help text.
+    pub fn help(mut self, help: impl Into<String>) -> Self {
+        self.help = Some(help.into());
+        self
+    }
+}

@@ -1,0 +1,685 @@
+//! Evaluation of field values: name resolution, unit conversion, interval
+//! arithmetic with tracked tolerances, kind checks and cycle detection.
+
+use crate::model::{FieldValue, Model, NodeId};
+use crate::schema::{self, BlockKind, FieldType};
+use crate::suggest::did_you_mean;
+use crate::value::{Corner, SourceId, ToleranceSource, Value, ValueError};
+use crate::{Diagnostic, FileId, Workspace};
+use guardband_syntax::{BinaryOp, Expr, ExprKind, Ident, Span};
+use guardband_units::{QuantityKind, TempSense, UnitError, parse_unit};
+
+/// Items a file can name: its own and those of the files it imports.
+pub fn visible_items(ws: &Workspace, model: &Model, file: FileId) -> Vec<NodeId> {
+    let mut files = vec![file];
+    files.extend(ws.file(file).imports.iter().map(|(f, _)| *f));
+    files
+        .iter()
+        .flat_map(|f| model.items.iter().copied().filter(move |i| model.node(*i).file == *f))
+        .collect()
+}
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum State {
+    Pending,
+    InProgress,
+    Done,
+    Failed,
+}
+
+/// What a dotted path names.
+enum Target {
+    Field(NodeId, usize, Option<Corner>),
+    Node(NodeId),
+}
+
+struct Evaluator<'a> {
+    ws: &'a Workspace,
+    model: &'a mut Model,
+    states: Vec<Vec<State>>,
+    stack: Vec<(NodeId, usize)>,
+    diagnostics: &'a mut Vec<Diagnostic>,
+}
+
+/// Evaluates every field of every node in place, reporting problems.
+pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnostic>) {
+    let states = model.nodes.iter().map(|n| vec![State::Pending; n.fields.len()]).collect();
+    let mut ev = Evaluator { ws, model, states, stack: Vec::new(), diagnostics };
+    for n in 0..ev.model.nodes.len() {
+        for i in 0..ev.model.nodes[n].fields.len() {
+            ev.field(NodeId(n as u32), i);
+        }
+    }
+}
+
+fn unit_help(kind: QuantityKind) -> String {
+    let units = match kind.si_symbol().as_str() {
+        "A" => "A, mA or uA",
+        "V" => "V or mV",
+        "F" => "uF, nF or pF",
+        "s" => "s, ms, us, h or yr",
+        "m" => "um, mm or mil",
+        "°C" => "°C (or K)",
+        "K" => "K",
+        "K/W" => "K/W",
+        "A/m^2" => "mA/um^2 or A/cm^2",
+        "A/m" => "mA/um",
+        "J" => "eV",
+        "Ω·m" => "uohm*cm or ohm*m",
+        "rad" => "deg",
+        "1" => "a plain number, % or ppm",
+        _ => "",
+    };
+    if units.is_empty() {
+        format!("write the value as {}", kind.describe())
+    } else {
+        format!("write the value in {units}")
+    }
+}
+
+impl<'a> Evaluator<'a> {
+    fn file_of(&self, node: NodeId) -> FileId {
+        self.model.node(node).file
+    }
+
+    fn text(&self, file: FileId, span: &Span) -> String {
+        self.ws.file(file).text.get(span.clone()).unwrap_or("").to_string()
+    }
+
+    fn push(&mut self, d: Diagnostic) {
+        self.diagnostics.push(d);
+    }
+
+    /// Evaluates field `index` of `node` once; later calls return the stored result.
+    fn field(&mut self, node: NodeId, index: usize) -> Option<FieldValue> {
+        match self.states[node.0 as usize][index] {
+            State::Done => return self.model.node(node).fields[index].value.clone(),
+            State::Failed => return None,
+            State::InProgress => {
+                self.report_cycle(node, index);
+                return None;
+            }
+            State::Pending => {}
+        }
+        self.states[node.0 as usize][index] = State::InProgress;
+        self.stack.push((node, index));
+        let field = self.model.node(node).fields[index].clone();
+        let result = self.typed(node, &field.expr, field.spec.ty, &field.key);
+        self.stack.pop();
+        if self.states[node.0 as usize][index] == State::Failed {
+            return None;
+        }
+        match result {
+            Some(v) => {
+                self.model.nodes[node.0 as usize].fields[index].value = Some(v.clone());
+                self.states[node.0 as usize][index] = State::Done;
+                Some(v)
+            }
+            None => {
+                self.states[node.0 as usize][index] = State::Failed;
+                None
+            }
+        }
+    }
+
+    fn field_path(&self, node: NodeId, index: usize) -> String {
+        let n = self.model.node(node);
+        format!("{}.{}", n.path, n.fields[index].key)
+    }
+
+    fn report_cycle(&mut self, node: NodeId, index: usize) {
+        let start = self.stack.iter().position(|e| *e == (node, index)).unwrap_or(0);
+        let chain: Vec<(NodeId, usize)> = self.stack[start..].to_vec();
+        let mut names: Vec<String> = chain.iter().map(|(n, i)| self.field_path(*n, *i)).collect();
+        names.push(self.field_path(node, index));
+        let (n0, i0) = chain[0];
+        let first = &self.model.node(n0).fields[i0];
+        let mut d = Diagnostic::error(
+            "cycle",
+            self.file_of(n0),
+            first.key_span.clone(),
+            format!("`{}` depends on itself: {}", names[0], names.join(" → ")),
+        )
+        .primary("this field is part of the cycle");
+        for (n, i) in chain.iter().skip(1) {
+            let f = &self.model.node(*n).fields[*i];
+            d = d.label(self.file_of(*n), f.key_span.clone(), "which depends on this");
+        }
+        self.push(d.help("give one of these fields a value that does not refer back"));
+        for (n, i) in chain {
+            self.states[n.0 as usize][i] = State::Failed;
+        }
+    }
+
+    /// Evaluates an expression as the field type expects.
+    fn typed(&mut self, node: NodeId, expr: &Expr, ty: FieldType, key: &str) -> Option<FieldValue> {
+        let file = self.file_of(node);
+        match ty {
+            FieldType::Quantity(kind) => {
+                let v = self.quantity(node, expr, key)?;
+                self.fit(file, expr, v, &[kind]).map(FieldValue::Quantity)
+            }
+            FieldType::AnyOf(kinds) => {
+                let v = self.quantity(node, expr, key)?;
+                self.fit(file, expr, v, kinds).map(FieldValue::Quantity)
+            }
+            FieldType::Bool => match expr.kind {
+                ExprKind::Bool(b) => Some(FieldValue::Bool(b)),
+                ExprKind::Error => None,
+                _ => {
+                    self.push(
+                        Diagnostic::error("invalid-value", file, expr.span.clone(), "expected `true` or `false`")
+                            .primary("not a yes/no value"),
+                    );
+                    None
+                }
+            },
+            FieldType::Text => match &expr.kind {
+                ExprKind::Str(s) => Some(FieldValue::Text(s.clone())),
+                ExprKind::Error => None,
+                _ => {
+                    self.push(
+                        Diagnostic::error("invalid-value", file, expr.span.clone(), "expected a quoted string")
+                            .primary("write text in double quotes"),
+                    );
+                    None
+                }
+            },
+            FieldType::Choice(options) => {
+                let word = match &expr.kind {
+                    ExprKind::Path(p) if p.len() == 1 => Some(p[0].text.clone()),
+                    ExprKind::Error => return None,
+                    _ => None,
+                };
+                match word {
+                    Some(w) if options.contains(&w.as_str()) => Some(FieldValue::Choice(w)),
+                    _ => {
+                        let found = self.text(file, &expr.span);
+                        let mut d = Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            format!("`{found}` is not one of {}", ty.describe().trim_start_matches("one of ")),
+                        )
+                        .primary("unknown choice");
+                        if let Some(s) = did_you_mean(&found, options.iter().copied()) {
+                            d = d.help(format!("did you mean `{s}`?"));
+                        }
+                        self.push(d);
+                        None
+                    }
+                }
+            }
+            FieldType::Ref(kinds) => {
+                let path = self.path_of(file, expr)?;
+                match self.resolve(node, &path, true)? {
+                    Target::Node(target) if kinds.contains(&self.model.node(target).kind) => Some(FieldValue::Ref(target)),
+                    _ => {
+                        self.push(
+                            Diagnostic::error(
+                                "invalid-value",
+                                file,
+                                expr.span.clone(),
+                                format!("expected {}", ty.describe()),
+                            )
+                            .primary("this names something else"),
+                        );
+                        None
+                    }
+                }
+            }
+            FieldType::Node => {
+                let path = self.path_of(file, expr)?;
+                if path.len() >= 2 {
+                    let (head, last) = path.split_at(path.len() - 1);
+                    let terminal = &last[0].text;
+                    if let Some(Target::Node(n)) = self.resolve_quiet(node, head) {
+                        let kind = self.model.node(n).kind;
+                        let terminals = match kind {
+                            BlockKind::Pass => schema::PASS_TERMINALS,
+                            BlockKind::Limit => schema::LIMIT_TERMINALS,
+                            _ => &[],
+                        };
+                        if terminals.contains(&terminal.as_str()) {
+                            return Some(FieldValue::Node { node: n, terminal: Some(terminal.clone()) });
+                        }
+                        let mut d = Diagnostic::error(
+                            "unknown-name",
+                            file,
+                            last[0].span.clone(),
+                            format!("`{terminal}` is not a terminal of `{}`", self.model.node(n).key()),
+                        )
+                        .primary("unknown terminal");
+                        if !terminals.is_empty() {
+                            d = d.help(format!("terminals: {}", terminals.join(", ")));
+                        }
+                        self.push(d);
+                        return None;
+                    }
+                }
+                match self.resolve(node, &path, true)? {
+                    Target::Node(n) if self.model.node(n).kind == BlockKind::Pin => {
+                        Some(FieldValue::Node { node: n, terminal: None })
+                    }
+                    _ => {
+                        self.push(
+                            Diagnostic::error("invalid-value", file, expr.span.clone(), format!("expected {}", ty.describe()))
+                                .primary("not a circuit node"),
+                        );
+                        None
+                    }
+                }
+            }
+        }
+    }
+
+    fn path_of(&mut self, file: FileId, expr: &Expr) -> Option<Vec<Ident>> {
+        match &expr.kind {
+            ExprKind::Path(p) => Some(p.clone()),
+            ExprKind::Error => None,
+            _ => {
+                self.push(
+                    Diagnostic::error("invalid-value", file, expr.span.clone(), "expected a name")
+                        .primary("write the name of a block here"),
+                );
+                None
+            }
+        }
+    }
+
+    /// Checks a value against the kinds a field accepts; fixes up kelvin literals.
+    fn fit(&mut self, file: FileId, expr: &Expr, mut v: Value, kinds: &[QuantityKind]) -> Option<Value> {
+        if let Some(k) = kinds.iter().find(|k| v.kind.fits(**k)) {
+            if v.kind.is_temperature() && v.kind.temp == TempSense::Either {
+                v.kind.temp = k.temp;
+            }
+            return Some(v);
+        }
+        let expected = kinds.iter().map(|k| k.describe()).collect::<Vec<_>>().join(" or ");
+        let mut d = Diagnostic::error(
+            "unit-mismatch",
+            file,
+            expr.span.clone(),
+            format!("expected {expected}, found {}", v.kind.describe()),
+        )
+        .primary(format!("this is {}", v.kind.describe()));
+        d = if kinds[0].is_temperature() && v.kind.is_temperature() {
+            if kinds[0].temp == TempSense::Difference {
+                d.help("a temperature rise or difference is written in K (a rise of 10 °C is `10 K`)")
+            } else {
+                d.help("an absolute temperature is written in °C or K, not as a difference")
+            }
+        } else {
+            d.help(unit_help(kinds[0]))
+        };
+        self.push(d);
+        None
+    }
+
+    fn new_source(&mut self, node: NodeId, key: &str, file: FileId, span: Span) -> SourceId {
+        let id = SourceId(self.model.sources.len() as u32);
+        let text = self.text(file, &span);
+        self.model.sources.push(ToleranceSource {
+            label: format!("{}.{}", self.model.node(node).path, key),
+            text,
+            file,
+            span,
+        });
+        id
+    }
+
+    fn value_error(&mut self, file: FileId, span: Span, err: ValueError, parts: &[(&Expr, &Value)]) {
+        let rule = match err {
+            ValueError::DivisorIncludesZero | ValueError::BadSqrt(_) | ValueError::NotFinite => "invalid-value",
+            _ => "unit-mismatch",
+        };
+        let mut d = Diagnostic::error(rule, file, span, err.to_string());
+        match err {
+            ValueError::DivisorIncludesZero => {
+                if let Some((e, v)) = parts.get(1) {
+                    d = d.label(file, e.span.clone(), format!("this ranges over {} .. {} and includes zero", v.lo, v.hi));
+                }
+                d = d.help("state the divisor so that its whole range is on one side of zero");
+            }
+            _ => {
+                for (e, v) in parts {
+                    d = d.label(file, e.span.clone(), format!("this is {}", v.kind.describe()));
+                }
+            }
+        }
+        self.push(d);
+    }
+
+    /// Evaluates an expression to a quantity; `key` labels stated tolerances.
+    fn quantity(&mut self, node: NodeId, expr: &Expr, key: &str) -> Option<Value> {
+        let file = self.file_of(node);
+        match &expr.kind {
+            ExprKind::Error => None,
+            ExprKind::Number { value, unit } => self.number(file, expr, *value, unit.as_ref()),
+            ExprKind::Bool(_) | ExprKind::Str(_) => {
+                self.push(
+                    Diagnostic::error("unit-mismatch", file, expr.span.clone(), "expected a quantity such as `150 mA`")
+                        .primary("not a number"),
+                );
+                None
+            }
+            ExprKind::Paren(inner) => self.quantity(node, inner, key),
+            ExprKind::Neg(inner) => {
+                let v = self.quantity(node, inner, key)?;
+                v.neg().map_err(|e| self.value_error(file, expr.span.clone(), e, &[(inner, &v)])).ok()
+            }
+            ExprKind::Binary(op, a, b) => {
+                let va = self.quantity(node, a, key)?;
+                let vb = self.quantity(node, b, key)?;
+                let r = match op {
+                    BinaryOp::Add => va.add(&vb),
+                    BinaryOp::Sub => va.sub(&vb),
+                    BinaryOp::Mul => va.mul(&vb),
+                    BinaryOp::Div => va.div(&vb),
+                };
+                r.map_err(|e| self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)])).ok()
+            }
+            ExprKind::Range(a, b) => {
+                let lo = self.quantity(node, a, key)?;
+                let hi = self.quantity(node, b, key)?;
+                if !lo.kind.fits(hi.kind) {
+                    let err = ValueError::Mismatch { left: lo.kind, right: hi.kind };
+                    self.value_error(file, expr.span.clone(), err, &[(a, &lo), (b, &hi)]);
+                    return None;
+                }
+                if lo.nom > hi.nom {
+                    self.push(
+                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this range runs backwards")
+                            .primary("the low end is above the high end")
+                            .help("write the smaller value first: `low .. high`"),
+                    );
+                    return None;
+                }
+                let kind = if lo.kind.temp == TempSense::Either { hi.kind } else { lo.kind };
+                let id = self.new_source(node, key, file, expr.span.clone());
+                let mut v = Value::range(kind, lo.lo, hi.hi, id);
+                v.unit = lo.unit.clone().or(hi.unit.clone());
+                Some(v)
+            }
+            ExprKind::Tolerance { base, plus, minus, symmetric } => {
+                let up_v = self.quantity(node, plus, key)?;
+                let down_v = if *symmetric { up_v.clone() } else { self.quantity(node, minus, key)? };
+                let mag = |v: &Value| v.nom.abs().max(v.lo.abs()).max(v.hi.abs());
+                let (up, down) = (mag(&up_v), mag(&down_v));
+                if !up_v.kind.fits(down_v.kind) {
+                    let err = ValueError::Mismatch { left: up_v.kind, right: down_v.kind };
+                    self.value_error(file, expr.span.clone(), err, &[(plus, &up_v), (minus, &down_v)]);
+                    return None;
+                }
+                let tol_span = match base {
+                    Some(b) => b.span.end..expr.span.end,
+                    None => expr.span.clone(),
+                };
+                match base {
+                    None => {
+                        if up_v.kind.is_temperature() && up_v.kind.temp == TempSense::Absolute {
+                            let err = ValueError::AbsoluteTemperature("a tolerance cannot be an absolute temperature; use K");
+                            self.value_error(file, expr.span.clone(), err, &[(plus, &up_v)]);
+                            return None;
+                        }
+                        let id = self.new_source(node, key, file, tol_span);
+                        let kind = QuantityKind { temp: TempSense::Difference, ..up_v.kind };
+                        Some(Value {
+                            kind,
+                            nom: 0.0,
+                            lo: -down,
+                            hi: up,
+                            terms: vec![crate::value::Term { source: id, low: -down, high: up }],
+                            unit: up_v.unit.clone(),
+                        })
+                    }
+                    Some(b) => {
+                        let base_v = self.quantity(node, b, key)?;
+                        let id = self.new_source(node, key, file, tol_span.clone());
+                        base_v
+                            .with_tolerance(up_v.kind, up, down, id)
+                            .map_err(|e| self.value_error(file, tol_span, e, &[(b, &base_v), (plus, &up_v)]))
+                            .ok()
+                    }
+                }
+            }
+            ExprKind::Call(name, args) => self.call(node, expr, name, args, key),
+            ExprKind::Path(path) => match self.resolve(node, path, false)? {
+                Target::Field(n, i, corner) => {
+                    let value = self.field(n, i)?;
+                    match value {
+                        FieldValue::Quantity(v) => Some(match corner {
+                            Some(c) => v.corner(c),
+                            None => v,
+                        }),
+                        _ => {
+                            self.push(
+                                Diagnostic::error(
+                                    "unit-mismatch",
+                                    file,
+                                    expr.span.clone(),
+                                    format!("`{}` is not a quantity", self.text(file, &expr.span)),
+                                )
+                                .primary("this names a word, flag or reference"),
+                            );
+                            None
+                        }
+                    }
+                }
+                Target::Node(n) => {
+                    let target = self.model.node(n);
+                    let fields: Vec<String> = target.fields.iter().take(3).map(|f| format!("`{}.{}`", target.key(), f.key)).collect();
+                    let mut d = Diagnostic::error(
+                        "invalid-value",
+                        file,
+                        expr.span.clone(),
+                        format!("`{}` is a {} block, not a value", target.key(), target.keyword),
+                    )
+                    .primary("names a block");
+                    if !fields.is_empty() {
+                        d = d.help(format!("name one of its fields, e.g. {}", fields.join(", ")));
+                    }
+                    self.push(d);
+                    None
+                }
+            },
+        }
+    }
+
+    fn number(&mut self, file: FileId, expr: &Expr, value: f64, unit: Option<&Ident>) -> Option<Value> {
+        if !value.is_finite() {
+            self.push(
+                Diagnostic::error("invalid-value", file, expr.span.clone(), "this number is too large")
+                    .primary("not a finite number"),
+            );
+            return None;
+        }
+        let Some(unit) = unit else {
+            return Some(Value::exact(QuantityKind::NONE, value));
+        };
+        match parse_unit(&unit.text) {
+            Ok(u) => {
+                let si = u.to_si(value);
+                if !si.is_finite() {
+                    self.push(
+                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this value is too large")
+                            .primary("not a finite number"),
+                    );
+                    return None;
+                }
+                if u.kind.temp == TempSense::Absolute && si < 0.0 {
+                    self.push(
+                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this temperature is below absolute zero")
+                            .primary("below -273.15 °C"),
+                    );
+                    return None;
+                }
+                let mut v = Value::exact(u.kind, si);
+                v.unit = Some(unit.text.clone());
+                Some(v)
+            }
+            Err(err) => {
+                let mut d = Diagnostic::error("unknown-unit", file, unit.span.clone(), err.to_string()).primary("not a unit");
+                if let UnitError::Unknown { suggestions, .. } = &err {
+                    if let Some(s) = suggestions.first() {
+                        d = d.help(format!("did you mean `{s}`? The language reference lists every unit"));
+                    } else {
+                        d = d.help("the language reference lists every unit");
+                    }
+                }
+                self.push(d);
+                None
+            }
+        }
+    }
+
+    fn call(&mut self, node: NodeId, expr: &Expr, name: &Ident, args: &[Expr], key: &str) -> Option<Value> {
+        let file = self.file_of(node);
+        let arity = match name.text.as_str() {
+            "min" | "max" => 2..=16,
+            "abs" | "sqrt" => 1..=1,
+            _ => {
+                let mut d = Diagnostic::error("unknown-name", file, name.span.clone(), format!("unknown function `{}`", name.text))
+                    .primary("not a function")
+                    .help("functions: min, max, abs, sqrt");
+                if let Some(s) = did_you_mean(&name.text, ["min", "max", "abs", "sqrt"]) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                }
+                self.push(d);
+                return None;
+            }
+        };
+        if !arity.contains(&args.len()) {
+            self.push(
+                Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    expr.span.clone(),
+                    format!("`{}` takes {} argument(s), found {}", name.text, if arity.start() == arity.end() { "1".to_string() } else { "2 or more".to_string() }, args.len()),
+                )
+                .primary("wrong number of arguments"),
+            );
+            return None;
+        }
+        let mut values = Vec::new();
+        for a in args {
+            values.push(self.quantity(node, a, key)?);
+        }
+        let mut acc = values[0].clone();
+        let result = match name.text.as_str() {
+            "abs" => acc.abs(),
+            "sqrt" => acc.sqrt(),
+            f => {
+                for v in &values[1..] {
+                    let next = if f == "min" { acc.min(v) } else { acc.max(v) };
+                    match next {
+                        Ok(n) => acc = n,
+                        Err(e) => {
+                            let parts: Vec<(&Expr, &Value)> = args.iter().zip(values.iter()).collect();
+                            self.value_error(file, expr.span.clone(), e, &parts);
+                            return None;
+                        }
+                    }
+                }
+                Ok(acc)
+            }
+        };
+        result
+            .map_err(|e| self.value_error(file, expr.span.clone(), e, &[(&args[0], &values[0])]))
+            .ok()
+    }
+
+    /// Resolves without reporting.
+    fn resolve_quiet(&self, from: NodeId, path: &[Ident]) -> Option<Target> {
+        self.lookup_scopes(from, path).ok()
+    }
+
+    /// Resolves a dotted path from `from`, reporting an unknown name.
+    fn resolve(&mut self, from: NodeId, path: &[Ident], want_block: bool) -> Option<Target> {
+        match self.lookup_scopes(from, path) {
+            Ok(t) => Some(t),
+            Err((bad, candidates)) => {
+                let file = self.file_of(from);
+                let seg = &path[bad];
+                let what = if want_block { "block" } else { "name" };
+                let mut d = Diagnostic::error("unknown-name", file, seg.span.clone(), format!("unknown {what} `{}`", seg.text))
+                    .primary("not found");
+                if let Some(s) = did_you_mean(&seg.text, candidates.iter().map(String::as_str)) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                } else if bad == 0 {
+                    if let Some(other) = self
+                        .model
+                        .items
+                        .iter()
+                        .map(|i| self.model.node(*i))
+                        .find(|n| n.key() == seg.text)
+                    {
+                        let other_file = &self.ws.file(other.file).display;
+                        d = d.help(format!("`{}` is defined in {other_file}; import it with `use \"...\"`", seg.text));
+                    }
+                }
+                self.push(d);
+                None
+            }
+        }
+    }
+
+    /// Looks a path up in each enclosing block, then among visible items.
+    /// On failure returns the index of the segment that failed and the names
+    /// that would have been valid there.
+    fn lookup_scopes(&self, from: NodeId, path: &[Ident]) -> Result<Target, (usize, Vec<String>)> {
+        let (path, corner) = match path.split_last() {
+            Some((last, rest)) if !rest.is_empty() => match last.text.as_str() {
+                "min" => (rest, Some(Corner::Min)),
+                "nom" => (rest, Some(Corner::Nom)),
+                "max" => (rest, Some(Corner::Max)),
+                _ => (path, None),
+            },
+            _ => (path, None),
+        };
+        let mut candidates = Vec::new();
+        let mut scope = Some(from);
+        while let Some(s) = scope {
+            let node = self.model.node(s);
+            if node.fields.iter().any(|f| f.key == path[0].text) || node.children.iter().any(|c| self.model.node(*c).key() == path[0].text) {
+                return self.descend(s, path, corner, 0);
+            }
+            candidates.extend(node.fields.iter().map(|f| f.key.clone()));
+            candidates.extend(node.children.iter().map(|c| self.model.node(*c).key().to_string()));
+            scope = node.parent;
+        }
+        let file = self.model.node(from).file;
+        for item in visible_items(self.ws, self.model, file) {
+            let n = self.model.node(item);
+            if n.key() == path[0].text {
+                if path.len() == 1 {
+                    return Ok(Target::Node(item));
+                }
+                return self.descend(item, &path[1..], corner, 1).map_err(|(i, c)| (i, c));
+            }
+            candidates.push(n.key().to_string());
+        }
+        Err((0, candidates))
+    }
+
+    /// Follows `path` downward from `node`; `offset` is the index of path[0] in the full path.
+    fn descend(&self, node: NodeId, path: &[Ident], corner: Option<Corner>, offset: usize) -> Result<Target, (usize, Vec<String>)> {
+        let n = self.model.node(node);
+        let seg = &path[0];
+        if let Some(i) = n.fields.iter().position(|f| f.key == seg.text) {
+            if path.len() > 1 {
+                return Err((offset + 1, vec!["min".into(), "nom".into(), "max".into()]));
+            }
+            return Ok(Target::Field(node, i, corner));
+        }
+        if let Some(c) = n.children.iter().copied().find(|c| self.model.node(*c).key() == seg.text) {
+            if path.len() == 1 {
+                return if corner.is_some() { Err((offset + 1, Vec::new())) } else { Ok(Target::Node(c)) };
+            }
+            return self.descend(c, &path[1..], corner, offset + 1);
+        }
+        let mut names: Vec<String> = n.fields.iter().map(|f| f.key.clone()).collect();
+        names.extend(n.children.iter().map(|c| self.model.node(*c).key().to_string()));
+        Err((offset, names))
+    }
+}

@@ -1,0 +1,171 @@
+//! The model: every block of the workspace as a node with checked fields,
+//! plus the stated tolerances. Built by [`crate::check`].
+
+use crate::schema::{BlockKind, FieldSpec};
+use crate::value::{ToleranceSource, Value};
+use crate::FileId;
+use guardband_syntax::{Expr, Relation, Span};
+
+/// Index of a node in [`Model::nodes`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct NodeId(pub u32);
+
+/// A checked field value.
+#[derive(Debug, Clone, PartialEq)]
+pub enum FieldValue {
+    Quantity(Value),
+    Bool(bool),
+    Choice(String),
+    /// A reference to another block.
+    Ref(NodeId),
+    /// A circuit node: a block, and a terminal of it (`pass.gate`) when named.
+    Node { node: NodeId, terminal: Option<String> },
+    Text(String),
+}
+
+/// One field as written, with its checked value (`None` when it had an error).
+#[derive(Debug, Clone)]
+pub struct Field {
+    pub keyword: String,
+    pub name: Option<String>,
+    /// The lookup key: the name for named fields, else the keyword.
+    pub key: String,
+    pub key_span: Span,
+    pub relation: Relation,
+    pub expr: Expr,
+    /// The whole field.
+    pub span: Span,
+    pub spec: &'static FieldSpec,
+    pub value: Option<FieldValue>,
+}
+
+impl Field {
+    /// The quantity, if this field holds one.
+    pub fn quantity(&self) -> Option<&Value> {
+        match &self.value {
+            Some(FieldValue::Quantity(v)) => Some(v),
+            _ => None,
+        }
+    }
+}
+
+/// A block: a regulator, a process, or something inside one.
+#[derive(Debug, Clone)]
+pub struct Node {
+    pub id: NodeId,
+    pub kind: BlockKind,
+    pub keyword: String,
+    pub name: Option<String>,
+    pub file: FileId,
+    pub span: Span,
+    /// The keyword and name, for pointing at the block itself.
+    pub header_span: Span,
+    pub parent: Option<NodeId>,
+    pub fields: Vec<Field>,
+    pub children: Vec<NodeId>,
+    /// Dotted path from the item, e.g. `probe_rail.sensed`.
+    pub path: String,
+}
+
+impl Node {
+    /// The key other blocks use to name this one: its name, or its keyword.
+    pub fn key(&self) -> &str {
+        self.name.as_deref().unwrap_or(&self.keyword)
+    }
+
+    /// The field with this key.
+    pub fn field(&self, key: &str) -> Option<&Field> {
+        self.fields.iter().find(|f| f.key == key)
+    }
+
+    /// The field with this keyword and name (`expect`, `current`).
+    pub fn named_field(&self, keyword: &str, name: &str) -> Option<&Field> {
+        self.fields
+            .iter()
+            .find(|f| f.keyword == keyword && f.name.as_deref() == Some(name))
+    }
+
+    /// All fields with this keyword (`force ...`, `expect ...`).
+    pub fn fields_named<'a>(&'a self, keyword: &'a str) -> impl Iterator<Item = &'a Field> + 'a {
+        self.fields.iter().filter(move |f| f.keyword == keyword)
+    }
+
+    /// The checked quantity of a field.
+    pub fn quantity(&self, key: &str) -> Option<&Value> {
+        self.field(key).and_then(Field::quantity)
+    }
+
+    /// The word of a choice field.
+    pub fn choice(&self, key: &str) -> Option<&str> {
+        match self.field(key).and_then(|f| f.value.as_ref()) {
+            Some(FieldValue::Choice(c)) => Some(c),
+            _ => None,
+        }
+    }
+
+    /// The value of a boolean field.
+    pub fn flag(&self, key: &str) -> Option<bool> {
+        match self.field(key).and_then(|f| f.value.as_ref()) {
+            Some(FieldValue::Bool(b)) => Some(*b),
+            _ => None,
+        }
+    }
+
+    /// The block a reference field names.
+    pub fn reference(&self, key: &str) -> Option<NodeId> {
+        match self.field(key).and_then(|f| f.value.as_ref()) {
+            Some(FieldValue::Ref(n)) => Some(*n),
+            _ => None,
+        }
+    }
+}
+
+/// Every checked block of a workspace.
+#[derive(Debug, Clone, Default)]
+pub struct Model {
+    pub nodes: Vec<Node>,
+    /// Top-level items (regulators and processes), in file order.
+    pub items: Vec<NodeId>,
+    /// Every tolerance or range stated anywhere, indexed by [`crate::SourceId`].
+    pub sources: Vec<ToleranceSource>,
+}
+
+impl Model {
+    /// The node with this id.
+    pub fn node(&self, id: NodeId) -> &Node {
+        &self.nodes[id.0 as usize]
+    }
+
+    /// Top-level items of one kind.
+    pub fn items_of(&self, kind: BlockKind) -> impl Iterator<Item = &Node> {
+        self.items.iter().map(|id| self.node(*id)).filter(move |n| n.kind == kind)
+    }
+
+    /// All regulators.
+    pub fn regulators(&self) -> impl Iterator<Item = &Node> {
+        self.items_of(BlockKind::Regulator)
+    }
+
+    /// Children of a node of one kind.
+    pub fn children<'a>(&'a self, node: &'a Node, kind: BlockKind) -> impl Iterator<Item = &'a Node> + 'a {
+        node.children.iter().map(|id| self.node(*id)).filter(move |n| n.kind == kind)
+    }
+
+    /// The first child of a node of one kind.
+    pub fn child<'a>(&'a self, node: &'a Node, kind: BlockKind) -> Option<&'a Node> {
+        self.children(node, kind).next()
+    }
+
+    /// The regulator (or process) a node belongs to.
+    pub fn item_of(&self, mut id: NodeId) -> &Node {
+        while let Some(p) = self.node(id).parent {
+            id = p;
+        }
+        self.node(id)
+    }
+
+    /// The tolerance source behind an id.
+    pub fn source(&self, id: crate::SourceId) -> &ToleranceSource {
+        &self.sources[id.0 as usize]
+    }
+}

@@ -1,0 +1,352 @@
+//! What may be written where: every block kind, its fields, and the kind of
+//! value each field expects. The evaluator checks files against this table and
+//! the language reference lists the same fields (a test keeps them in step).
+
+use guardband_units::{Dimension, QuantityKind};
+
+/// The kinds of blocks the language knows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum BlockKind {
+    Regulator,
+    Process,
+    Metal,
+    Pin,
+    Pass,
+    Limit,
+    ThermalShutdown,
+    Foldback,
+    Startup,
+    Conductor,
+    Fault,
+    Analysis,
+}
+
+/// What a field's value must be.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum FieldType {
+    /// A quantity of this kind.
+    Quantity(QuantityKind),
+    /// A quantity of any of these kinds.
+    AnyOf(&'static [QuantityKind]),
+    /// `true` or `false`.
+    Bool,
+    /// One word out of a fixed list.
+    Choice(&'static [&'static str]),
+    /// A reference to a block of one of these kinds.
+    Ref(&'static [BlockKind]),
+    /// A circuit node: a pin, or a terminal of the pass device or of a limit (`pass.gate`).
+    Node,
+    /// A quoted string.
+    Text,
+}
+
+/// One field a block may hold.
+#[derive(Debug, Clone, Copy)]
+pub struct FieldSpec {
+    /// The word before `=` (or before the name, for named fields).
+    pub keyword: &'static str,
+    /// For named fields (`expect current <= ...`): the allowed name, or `*` for any.
+    pub name: Option<&'static str>,
+    pub ty: FieldType,
+    /// True when the relation is a comparison (`<=`, `>=`, `<`, `>`) rather than `=`.
+    pub requirement: bool,
+    pub doc: &'static str,
+}
+
+/// One block kind: its keyword, whether it takes a name, fields and children.
+#[derive(Debug, Clone, Copy)]
+pub struct BlockSpec {
+    pub kind: BlockKind,
+    pub keyword: &'static str,
+    pub named: bool,
+    pub fields: &'static [FieldSpec],
+    pub children: &'static [BlockKind],
+    pub doc: &'static str,
+}
+
+const fn q(dim: Dimension) -> FieldType {
+    FieldType::Quantity(QuantityKind::of(dim))
+}
+const CURRENT: FieldType = FieldType::Quantity(QuantityKind::CURRENT);
+const VOLTAGE: FieldType = FieldType::Quantity(QuantityKind::VOLTAGE);
+const RATIO: FieldType = FieldType::Quantity(QuantityKind::NONE);
+const ABS_TEMP: FieldType = FieldType::Quantity(QuantityKind::ABSOLUTE_TEMPERATURE);
+const DELTA_TEMP: FieldType = FieldType::Quantity(QuantityKind::TEMPERATURE_DIFFERENCE);
+const LENGTH: FieldType = q(Dimension::LENGTH);
+const TIME: FieldType = q(Dimension::TIME);
+
+const fn f(keyword: &'static str, ty: FieldType, doc: &'static str) -> FieldSpec {
+    FieldSpec { keyword, name: None, ty, requirement: false, doc }
+}
+const fn named(keyword: &'static str, name: &'static str, ty: FieldType, requirement: bool, doc: &'static str) -> FieldSpec {
+    FieldSpec { keyword, name: Some(name), ty, requirement, doc }
+}
+const DESCRIPTION: FieldSpec = f("description", FieldType::Text, "free text shown in hovers");
+
+/// The choices of `limit.scheme`.
+pub const SCHEMES: &[&str] = &["replica", "undervoltage_fixed"];
+/// The choices of `fault.event`.
+pub const EVENTS: &[&str] = &["short_to_ground", "short_to_supply", "overload", "startup"];
+
+/// Every block kind the language knows.
+pub const BLOCKS: &[BlockSpec] = &[
+    BlockSpec {
+        kind: BlockKind::Regulator,
+        keyword: "regulator",
+        named: true,
+        doc: "a regulator block and its protection requirements",
+        children: &[
+            BlockKind::Pin,
+            BlockKind::Pass,
+            BlockKind::Limit,
+            BlockKind::ThermalShutdown,
+            BlockKind::Foldback,
+            BlockKind::Startup,
+            BlockKind::Conductor,
+            BlockKind::Fault,
+            BlockKind::Analysis,
+        ],
+        fields: &[
+            f("supply", VOLTAGE, "input supply range"),
+            f("output", VOLTAGE, "regulated output voltage and its tolerance"),
+            f("load", CURRENT, "load current range; the rated load is its maximum"),
+            f("ambient", ABS_TEMP, "ambient temperature range"),
+            f("junction_max", ABS_TEMP, "highest allowed junction temperature"),
+            f("theta_ja", q(Dimension::THERMAL_RESISTANCE), "junction-to-ambient thermal resistance"),
+            f("margin", RATIO, "required margin of the limit's low edge above rated load (overrides guardband.toml)"),
+            f("lifetime", TIME, "target lifetime for conductor ratings (overrides guardband.toml)"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Process,
+        keyword: "process",
+        named: true,
+        doc: "process data shared by many blocks",
+        children: &[BlockKind::Metal],
+        fields: &[
+            named("spread", "*", RATIO, false, "a typical spread, e.g. `spread resistor = ± 18 %`"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Metal,
+        keyword: "metal",
+        named: true,
+        doc: "an on-die metal layer",
+        children: &[],
+        fields: &[
+            f("thickness", LENGTH, "layer thickness"),
+            f("current_density", q(Dimension::CURRENT_DENSITY), "electromigration current-density limit at the reference temperature"),
+            f("current_per_width", q(Dimension::CURRENT_PER_LENGTH), "electromigration limit per unit width (instead of current_density)"),
+            f("reference_temperature", ABS_TEMP, "temperature at which the limit is stated"),
+            f("reference_lifetime", TIME, "lifetime for which the limit is stated"),
+            f("activation_energy", q(Dimension::ENERGY), "Black's-equation activation energy"),
+            f("current_exponent", RATIO, "Black's-equation current-density exponent"),
+            f("resistivity", q(Dimension::RESISTIVITY), "resistivity at the reference temperature"),
+            f("temperature_coefficient", q(Dimension::PER_TEMPERATURE), "resistivity temperature coefficient"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Pin,
+        keyword: "pin",
+        named: true,
+        doc: "a pin of the block",
+        children: &[],
+        fields: &[
+            f("off_chip", FieldType::Bool, "whether the pin leaves the die (and can be touched)"),
+            f("capacitance", q(Dimension::CAPACITANCE), "capacitance attached to the pin"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Pass,
+        keyword: "pass",
+        named: false,
+        doc: "the pass device; its terminals are `gate`, `source` and `drain`",
+        children: &[],
+        fields: &[
+            f("full_gate_current", CURRENT, "current with the gate fully on, weak .. strong corner"),
+            f("amplifier_drive", CURRENT, "output drive of the error amplifier at the gate"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Limit,
+        keyword: "limit",
+        named: true,
+        doc: "a current limit; `scheme` says which kind",
+        children: &[],
+        fields: &[
+            f("scheme", FieldType::Choice(SCHEMES), "`replica` (sensed) or `undervoltage_fixed`"),
+            f("ratio", RATIO, "replica: pass-to-replica size ratio"),
+            f("reference", CURRENT, "replica: reference current of the comparator"),
+            f("mismatch", RATIO, "replica: ratio mismatch, a bare tolerance such as `± 8 %`"),
+            f("drain_error", RATIO, "replica: error from the drain-voltage difference, a bare tolerance"),
+            f("threshold", CURRENT, "replica: trip current (usually `ratio * reference`)"),
+            f("clamp_drive", CURRENT, "replica: drive of the clamp on the pass gate"),
+            f("threshold_voltage", VOLTAGE, "undervoltage_fixed: output voltage below which the fixed current is used"),
+            f("fixed_current", CURRENT, "undervoltage_fixed: the fixed current"),
+            f("trip_current", CURRENT, "undervoltage_fixed: characterised overload current at which it trips"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::ThermalShutdown,
+        keyword: "thermal_shutdown",
+        named: false,
+        doc: "thermal shutdown",
+        children: &[],
+        fields: &[
+            f("threshold", ABS_TEMP, "junction temperature at which the block shuts down"),
+            f("hysteresis", DELTA_TEMP, "temperature drop before it restarts"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Foldback,
+        keyword: "foldback",
+        named: false,
+        doc: "current foldback as the output collapses",
+        children: &[],
+        fields: &[
+            f("current", CURRENT, "current with the output shorted"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Startup,
+        keyword: "startup",
+        named: false,
+        doc: "startup requirements",
+        children: &[],
+        fields: &[
+            f("time_max", TIME, "required startup time"),
+            f("slew", q(Dimension::SLEW_RATE), "output ramp rate set by a soft start"),
+            f("supply_surge_max", CURRENT, "largest surge the supply may see"),
+            f("load", CURRENT, "load during startup (default: the rated load)"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Conductor,
+        keyword: "conductor",
+        named: true,
+        doc: "on-die metal (`layer`), a bond wire (`diameter`) or a board trace (`placement`)",
+        children: &[],
+        fields: &[
+            f("carries", FieldType::Ref(&[BlockKind::Pass, BlockKind::Pin]), "what current flows through it"),
+            f("layer", FieldType::Ref(&[BlockKind::Metal]), "metal: the process layer"),
+            f("width", LENGTH, "metal or trace width"),
+            f("length", LENGTH, "length (information)"),
+            f("diameter", LENGTH, "bond wire diameter"),
+            f("material", FieldType::Choice(&["copper", "aluminium", "gold"]), "bond wire material"),
+            f("placement", FieldType::Choice(&["external", "internal"]), "board trace: outer or inner layer"),
+            f("thickness", LENGTH, "board trace copper thickness"),
+            f("temperature_rise", DELTA_TEMP, "board trace: allowed temperature rise"),
+            f("temperature", ABS_TEMP, "temperature the conductor sees (default: junction_max, or ambient max for traces)"),
+            f("rating", CURRENT, "explicit current rating; overrides geometry"),
+            f("lifetime", TIME, "lifetime the rating is meant for"),
+            f("derating", RATIO, "fraction of the fusing current allowed for a bond wire"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Fault,
+        keyword: "fault",
+        named: true,
+        doc: "a fault-test case of the verification plan",
+        children: &[],
+        fields: &[
+            f("pin", FieldType::Ref(&[BlockKind::Pin]), "where the fault is applied"),
+            f("event", FieldType::Choice(EVENTS), "what happens"),
+            f("exercises", FieldType::Ref(&[BlockKind::Limit, BlockKind::ThermalShutdown, BlockKind::Foldback]), "the protection this case exercises"),
+            named("expect", "current", CURRENT, true, "expected current bound"),
+            named("expect", "junction", ABS_TEMP, true, "expected junction temperature bound"),
+            named("expect", "time", TIME, true, "expected time bound"),
+            named("expect", "output", VOLTAGE, true, "expected output voltage bound"),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Analysis,
+        keyword: "analysis",
+        named: true,
+        doc: "a stability analysis of a limit loop",
+        children: &[],
+        fields: &[
+            f("loop", FieldType::Ref(&[BlockKind::Limit]), "the limit whose loop is analysed"),
+            named(
+                "force",
+                "*",
+                FieldType::AnyOf(&[
+                    QuantityKind::VOLTAGE,
+                    QuantityKind::of(Dimension::RESISTANCE),
+                    QuantityKind::CURRENT,
+                ]),
+                false,
+                "how a pin is forced: a voltage, a resistance, or (wrongly) a current",
+            ),
+            f("break_at", FieldType::Node, "where the loop is broken, e.g. `pass.gate`"),
+            named("require", "phase_margin", q(Dimension::ANGLE), true, "required phase margin"),
+            named("require", "gain_margin", FieldType::Quantity(QuantityKind::of(Dimension::LEVEL)), true, "required gain margin"),
+            DESCRIPTION,
+        ],
+    },
+];
+
+/// The spec of a block kind.
+pub fn block_spec(kind: BlockKind) -> &'static BlockSpec {
+    BLOCKS.iter().find(|b| b.kind == kind).expect("every kind has a spec")
+}
+
+/// The spec of a block keyword allowed inside `parent` (or at top level for `None`).
+pub fn child_spec(parent: Option<BlockKind>, keyword: &str) -> Option<&'static BlockSpec> {
+    let allowed: &[BlockKind] = match parent {
+        None => &[BlockKind::Regulator, BlockKind::Process],
+        Some(p) => block_spec(p).children,
+    };
+    allowed
+        .iter()
+        .map(|k| block_spec(*k))
+        .find(|b| b.keyword == keyword)
+}
+
+/// The spec of a field `keyword [name]` in a block kind.
+pub fn field_spec(kind: BlockKind, keyword: &str, name: Option<&str>) -> Option<&'static FieldSpec> {
+    block_spec(kind).fields.iter().find(|f| {
+        f.keyword == keyword
+            && match (f.name, name) {
+                (None, None) => true,
+                (Some("*"), Some(_)) => true,
+                (Some(a), Some(b)) => a == b,
+                _ => false,
+            }
+    })
+}
+
+/// Terminals a [`FieldType::Node`] may name on the pass device and on a limit.
+pub const PASS_TERMINALS: &[&str] = &["gate", "source", "drain"];
+pub const LIMIT_TERMINALS: &[&str] = &["clamp", "comparator"];
+
+impl FieldType {
+    /// A short description of what is expected, for messages.
+    pub fn describe(&self) -> String {
+        match self {
+            FieldType::Quantity(k) => k.describe(),
+            FieldType::AnyOf(ks) => ks.iter().map(|k| k.describe()).collect::<Vec<_>>().join(" or "),
+            FieldType::Bool => "`true` or `false`".to_string(),
+            FieldType::Choice(options) => format!(
+                "one of {}",
+                options.iter().map(|o| format!("`{o}`")).collect::<Vec<_>>().join(", ")
+            ),
+            FieldType::Ref(kinds) => format!(
+                "the name of a {}",
+                kinds.iter().map(|k| block_spec(*k).keyword).collect::<Vec<_>>().join(" or ")
+            ),
+            FieldType::Node => "a node such as `pass.gate` or a pin name".to_string(),
+            FieldType::Text => "a quoted string".to_string(),
+        }
+    }
+}

@@ -1,0 +1,252 @@
+//! Loading `.guard` files from disk: decoding, parsing, following `use`
+//! imports inside the workspace root, and reporting import cycles.
+
+use crate::{Diagnostic, FileId};
+use guardband_syntax::{Item, LineIndex, Parse, parse};
+use std::path::{Component, Path, PathBuf};
+
+/// One loaded file.
+#[derive(Debug, Clone)]
+pub struct SourceFile {
+    pub id: FileId,
+    /// Absolute, canonical path.
+    pub path: PathBuf,
+    /// Path relative to the workspace root with `/` separators, for output.
+    pub display: String,
+    /// The text without a leading byte-order mark.
+    pub text: String,
+    pub parse: Parse,
+    pub line_index: LineIndex,
+    /// Files this one imports with `use`, in order, with the span of each `use`.
+    pub imports: Vec<(FileId, guardband_syntax::Span)>,
+}
+
+/// All files of one check, rooted at the workspace root.
+#[derive(Debug, Clone, Default)]
+pub struct Workspace {
+    pub root: PathBuf,
+    pub files: Vec<SourceFile>,
+}
+
+impl Workspace {
+    /// The file with this id.
+    pub fn file(&self, id: FileId) -> &SourceFile {
+        &self.files[id.0 as usize]
+    }
+
+    /// Adds a file that is not a spec (such as `guardband.toml`) so that
+    /// diagnostics can point into it. It is not parsed.
+    pub fn add_text_file(&mut self, path: PathBuf, text: String) -> FileId {
+        let id = FileId(self.files.len() as u32);
+        let display = path
+            .strip_prefix(&self.root)
+            .map(|p| p.to_string_lossy().replace('\\', "/"))
+            .unwrap_or_else(|_| path.to_string_lossy().into_owned());
+        let line_index = LineIndex::new(&text);
+        self.files.push(SourceFile { id, path, display, text, parse: Parse::default(), line_index, imports: Vec::new() });
+        id
+    }
+
+    /// Looks a file up by canonical path.
+    pub fn find(&self, path: &Path) -> Option<FileId> {
+        self.files.iter().find(|f| f.path == path).map(|f| f.id)
+    }
+}
+
+/// Removes `.` and resolves `..` lexically, without touching the file system.
+pub fn normalize(path: &Path) -> PathBuf {
+    let mut out = PathBuf::new();
+    for c in path.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+/// Decodes file bytes: strips a BOM; invalid UTF-8 and NUL bytes are
+/// reported (with the offset of the first bad byte) instead of parsed.
+pub fn decode(bytes: &[u8]) -> Result<String, (String, usize, String)> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    match std::str::from_utf8(bytes) {
+        Ok(text) => {
+            if let Some(pos) = text.find('\0') {
+                return Err((
+                    text.to_string(),
+                    pos,
+                    "this file contains a NUL byte; is it a binary file?".to_string(),
+                ));
+            }
+            Ok(text.to_string())
+        }
+        Err(e) => {
+            let lossy = String::from_utf8_lossy(bytes).into_owned();
+            Err((
+                lossy,
+                e.valid_up_to(),
+                format!("this file is not valid UTF-8 (bad byte at offset {})", e.valid_up_to()),
+            ))
+        }
+    }
+}
+
+/// Loads the given files and everything they import. Diagnostics for bad
+/// encodings, missing imports, imports leaving `root` and import cycles are
+/// pushed to `diagnostics`. Unreadable entry files are returned as errors.
+pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>) -> Result<Workspace, (PathBuf, std::io::Error)> {
+    let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    let mut ws = Workspace { root: root.clone(), files: Vec::new() };
+    let mut queue: Vec<FileId> = Vec::new();
+    for entry in entries {
+        let path = entry.canonicalize().map_err(|e| (entry.clone(), e))?;
+        if ws.find(&path).is_some() {
+            continue;
+        }
+        let bytes = std::fs::read(&path).map_err(|e| (entry.clone(), e))?;
+        let id = add_file(&mut ws, path, &bytes, diagnostics);
+        queue.push(id);
+    }
+    while let Some(id) = queue.pop() {
+        let file = ws.file(id).clone();
+        let dir = file.path.parent().map(Path::to_path_buf).unwrap_or_default();
+        let mut imports = Vec::new();
+        for item in &file.parse.file.items {
+            let Item::Use(u) = item else { continue };
+            let target = normalize(&dir.join(&u.path));
+            if !target.starts_with(&root) {
+                diagnostics.push(
+                    Diagnostic::error(
+                        "import-outside-workspace",
+                        id,
+                        u.path_span.clone(),
+                        format!("`{}` is outside the workspace root", u.path),
+                    )
+                    .primary("this path leaves the workspace")
+                    .help(format!(
+                        "imports must stay below {}; move the shared file into the workspace",
+                        root.display()
+                    )),
+                );
+                continue;
+            }
+            let canonical = match target.canonicalize() {
+                Ok(c) => c,
+                Err(_) => {
+                    diagnostics.push(
+                        Diagnostic::error("import-not-found", id, u.path_span.clone(), format!("cannot find `{}`", u.path))
+                            .primary("no such file")
+                            .help("paths in `use` are relative to the importing file"),
+                    );
+                    continue;
+                }
+            };
+            if !canonical.starts_with(&root) {
+                diagnostics.push(
+                    Diagnostic::error(
+                        "import-outside-workspace",
+                        id,
+                        u.path_span.clone(),
+                        format!("`{}` resolves (through a link) outside the workspace root", u.path),
+                    )
+                    .primary("this path leaves the workspace"),
+                );
+                continue;
+            }
+            let target_id = match ws.find(&canonical) {
+                Some(t) => t,
+                None => match std::fs::read(&canonical) {
+                    Ok(bytes) => {
+                        let t = add_file(&mut ws, canonical, &bytes, diagnostics);
+                        queue.push(t);
+                        t
+                    }
+                    Err(e) => {
+                        diagnostics.push(
+                            Diagnostic::error("import-not-found", id, u.path_span.clone(), format!("cannot read `{}`: {e}", u.path))
+                                .primary("unreadable"),
+                        );
+                        continue;
+                    }
+                },
+            };
+            imports.push((target_id, u.span.clone()));
+        }
+        ws.files[id.0 as usize].imports = imports;
+    }
+    report_cycles(&ws, diagnostics);
+    Ok(ws)
+}
+
+fn add_file(ws: &mut Workspace, path: PathBuf, bytes: &[u8], diagnostics: &mut Vec<Diagnostic>) -> FileId {
+    let id = FileId(ws.files.len() as u32);
+    let display = path
+        .strip_prefix(&ws.root)
+        .map(|p| p.to_string_lossy().replace('\\', "/"))
+        .unwrap_or_else(|_| path.to_string_lossy().into_owned());
+    let (text, parsed) = match decode(bytes) {
+        Ok(text) => {
+            let parsed = parse(&text);
+            (text, parsed)
+        }
+        Err((text, offset, message)) => {
+            let end = text[offset.min(text.len())..]
+                .chars()
+                .next()
+                .map(|c| offset + c.len_utf8())
+                .unwrap_or(offset);
+            diagnostics.push(
+                Diagnostic::error("encoding", id, offset..end, message)
+                    .primary("here")
+                    .help("guardband reads UTF-8 text; the file was not checked"),
+            );
+            (text, Parse::default())
+        }
+    };
+    let line_index = LineIndex::new(&text);
+    ws.files.push(SourceFile { id, path, display, text, parse: parsed, line_index, imports: Vec::new() });
+    id
+}
+
+/// Reports each import cycle once, at the `use` that closes it.
+fn report_cycles(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) {
+    #[derive(Clone, Copy, PartialEq)]
+    enum Mark {
+        New,
+        Active,
+        Done,
+    }
+    let mut marks = vec![Mark::New; ws.files.len()];
+    let mut stack: Vec<FileId> = Vec::new();
+    fn visit(ws: &Workspace, id: FileId, marks: &mut [Mark], stack: &mut Vec<FileId>, diagnostics: &mut Vec<Diagnostic>) {
+        marks[id.0 as usize] = Mark::Active;
+        stack.push(id);
+        for (next, span) in &ws.file(id).imports {
+            let next = *next;
+            match marks[next.0 as usize] {
+                Mark::New => visit(ws, next, marks, stack, diagnostics),
+                Mark::Active => {
+                    let start = stack.iter().position(|f| *f == next).unwrap_or(0);
+                    let mut chain: Vec<&str> = stack[start..].iter().map(|f| ws.file(*f).display.as_str()).collect();
+                    chain.push(ws.file(next).display.as_str());
+                    diagnostics.push(
+                        Diagnostic::error("cycle", id, span.clone(), format!("import cycle: {}", chain.join(" → ")))
+                            .primary("this import closes the cycle")
+                            .help("move the shared items into a file that both can import"),
+                    );
+                }
+                Mark::Done => {}
+            }
+        }
+        stack.pop();
+        marks[id.0 as usize] = Mark::Done;
+    }
+    for f in &ws.files {
+        if marks[f.id.0 as usize] == Mark::New {
+            visit(ws, f.id, &mut marks, &mut stack, diagnostics);
+        }
+    }
+}

@@ -1,0 +1,181 @@
+//! `guardband.toml`: per-rule severities and the numbers the rules use.
+//!
+//! Every key is declared (and documented) in [`KEYS`]; unknown keys and bad
+//! values are errors pointing at their line in the file.
+
+use guardband_model::{Diagnostic, FileId, Severity, Workspace, did_you_mean};
+use std::collections::HashMap;
+
+/// The settings the rules read.
+#[derive(Debug, Clone)]
+pub struct Config {
+    /// Required margin of a limit's low edge above rated load, as a fraction.
+    pub margin: f64,
+    /// Whether the statistical (root-sum-square) window is checked as well.
+    pub statistical: bool,
+    /// How many standard deviations one stated ± stands for.
+    pub sigma: f64,
+    /// Target lifetime for conductor ratings, in seconds (None: no lifetime derating).
+    pub lifetime: Option<f64>,
+    /// Exit 1 on warnings too.
+    pub deny_warnings: bool,
+    /// Severity overrides by rule name; `None` turns a rule off.
+    pub severities: HashMap<String, Option<Severity>>,
+    /// Where the file is, if there is one.
+    pub file: Option<FileId>,
+}
+
+impl Default for Config {
+    fn default() -> Self {
+        Config {
+            margin: 0.2,
+            statistical: true,
+            sigma: 3.0,
+            lifetime: None,
+            deny_warnings: false,
+            severities: HashMap::new(),
+            file: None,
+        }
+    }
+}
+
+/// Documented keys of `guardband.toml`: (key, what it takes, meaning, default).
+pub const KEYS: &[(&str, &str, &str, &str)] = &[
+    ("margin", "a percentage string such as \"20 %\", or a fraction", "required margin of a limit's low edge above rated load", "\"20 %\" (common practice, no source)"),
+    ("statistical", "true or false", "also check the root-sum-square window", "true"),
+    ("sigma", "a number", "how many standard deviations a stated ± stands for", "3"),
+    ("lifetime", "a time string such as \"10 yr\"", "target lifetime for electromigration ratings", "none (no lifetime derating)"),
+    ("deny", "a list, e.g. [\"warnings\"]", "also fail on warnings", "[]"),
+    ("[rules]", "rule = \"error\" | \"warning\" | \"info\" | \"off\"", "per-rule severity", "each rule's default"),
+];
+
+fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
+    let mut offset = 0;
+    for line in text.split_inclusive('\n') {
+        let trimmed = line.trim_start();
+        let indent = line.len() - trimmed.len();
+        let bare = trimmed.trim_start_matches('"');
+        if bare.starts_with(key) && bare[key.len()..].trim_start_matches('"').trim_start().starts_with('=') {
+            return offset + indent..offset + indent + trimmed.find('=').unwrap_or(key.len());
+        }
+        offset += line.len();
+    }
+    0..0
+}
+
+/// Parses a quantity string like `"20 %"` or `"10 yr"` to SI.
+fn quantity(text: &str) -> Option<(f64, guardband_units::QuantityKind)> {
+    let text = text.trim();
+    let split = text.find(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-' || c == '+' || c == 'e' || c == 'E')).unwrap_or(text.len());
+    let (num, unit) = text.split_at(split);
+    let n: f64 = num.trim().parse().ok()?;
+    let unit = unit.trim();
+    if unit.is_empty() {
+        return Some((n, guardband_units::QuantityKind::NONE));
+    }
+    let u = guardband_units::parse_unit(unit).ok()?;
+    Some((u.to_si(n), u.kind))
+}
+
+impl Config {
+    /// Reads `guardband.toml` at the workspace root, if present. Problems are
+    /// diagnostics in that file (added to the workspace so they can be shown);
+    /// the defaults stand in for any bad value.
+    pub fn load(ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
+        let path = ws.root.join("guardband.toml");
+        let mut config = Config::default();
+        let Ok(bytes) = std::fs::read(&path) else {
+            return (config, Vec::new());
+        };
+        let text = String::from_utf8_lossy(&bytes).into_owned();
+        let file = ws.add_text_file(path, text.clone());
+        config.file = Some(file);
+        let mut diags = Vec::new();
+        let bad = |key: &str, msg: String, help: &str| {
+            Diagnostic::error("config", file, key_span(&text, key), msg).primary("here").help(help.to_string())
+        };
+        let table: toml::Table = match text.parse() {
+            Ok(t) => t,
+            Err(e) => {
+                let span = e.span().unwrap_or(0..0);
+                diags.push(
+                    Diagnostic::error("config", file, span, format!("guardband.toml is not valid TOML: {}", e.message()))
+                        .primary("here"),
+                );
+                return (config, diags);
+            }
+        };
+        let known = ["margin", "statistical", "sigma", "lifetime", "deny", "rules"];
+        for (key, value) in &table {
+            match key.as_str() {
+                "margin" => match value {
+                    toml::Value::Float(f) => config.margin = *f,
+                    toml::Value::String(s) => match quantity(s) {
+                        Some((v, k)) if k.dim.is_none() => config.margin = v,
+                        _ => diags.push(bad(key, format!("`margin = \"{s}\"` is not a percentage"), "write e.g. `margin = \"20 %\"`")),
+                    },
+                    _ => diags.push(bad(key, "`margin` takes a percentage".into(), "write e.g. `margin = \"20 %\"`")),
+                },
+                "statistical" => match value {
+                    toml::Value::Boolean(b) => config.statistical = *b,
+                    _ => diags.push(bad(key, "`statistical` takes true or false".into(), "write `statistical = true`")),
+                },
+                "sigma" => match value {
+                    toml::Value::Float(f) if *f > 0.0 => config.sigma = *f,
+                    toml::Value::Integer(i) if *i > 0 => config.sigma = *i as f64,
+                    _ => diags.push(bad(key, "`sigma` takes a positive number".into(), "write e.g. `sigma = 3`")),
+                },
+                "lifetime" => match value.as_str().and_then(quantity) {
+                    Some((v, k)) if k.dim == guardband_units::Dimension::TIME && v > 0.0 => config.lifetime = Some(v),
+                    _ => diags.push(bad(key, "`lifetime` takes a time such as \"10 yr\"".into(), "write e.g. `lifetime = \"10 yr\"`")),
+                },
+                "deny" => match value.as_array() {
+                    Some(items) if items.iter().all(|i| i.as_str() == Some("warnings")) => {
+                        config.deny_warnings = !items.is_empty();
+                    }
+                    _ => diags.push(bad(key, "`deny` takes a list holding \"warnings\"".into(), "write `deny = [\"warnings\"]`")),
+                },
+                "rules" => match value.as_table() {
+                    Some(rules) => {
+                        for (rule, sev) in rules {
+                            if !crate::registry().iter().any(|r| r.name == rule) {
+                                let names: Vec<&str> = crate::registry().iter().map(|r| r.name).collect();
+                                let help = did_you_mean(rule, names.iter().copied())
+                                    .map(|s| format!("did you mean `{s}`?"))
+                                    .unwrap_or_else(|| "`guardband explain --list` shows every rule".into());
+                                diags.push(bad(rule, format!("unknown rule `{rule}`"), &help));
+                                continue;
+                            }
+                            let level = match sev.as_str() {
+                                Some("error") => Some(Some(Severity::Error)),
+                                Some("warning") => Some(Some(Severity::Warning)),
+                                Some("info") => Some(Some(Severity::Info)),
+                                Some("off") => Some(None),
+                                _ => None,
+                            };
+                            match level {
+                                Some(l) => {
+                                    config.severities.insert(rule.clone(), l);
+                                }
+                                None => diags.push(bad(rule, format!("bad severity for `{rule}`"), "use \"error\", \"warning\", \"info\" or \"off\"")),
+                            }
+                        }
+                    }
+                    None => diags.push(bad(key, "`rules` must be a table".into(), "write `[rules]` and then `rule-name = \"warning\"`")),
+                },
+                other => {
+                    let help = did_you_mean(other, known.iter().copied())
+                        .map(|s| format!("did you mean `{s}`?"))
+                        .unwrap_or_else(|| format!("known keys: {}", known.join(", ")));
+                    diags.push(bad(other, format!("unknown key `{other}` in guardband.toml"), &help));
+                }
+            }
+        }
+        (config, diags)
+    }
+
+    /// The severity a rule runs at: the override, else its default.
+    pub fn severity(&self, rule: &str, default: Option<Severity>) -> Option<Severity> {
+        self.severities.get(rule).copied().unwrap_or(default)
+    }
+}

@@ -1,0 +1,60 @@
+//! ## What it flags
+//! An exact value (no tolerance, no range) in a field that feeds a worst-case
+//! derivation: supply, output, ambient, thermal resistance, capacitance,
+//! full-gate current, amplifier and clamp drive, the limit's reference,
+//! threshold, fixed and trip currents, foldback current and shutdown threshold.
+//!
+//! ## Why it matters
+//! Every physical value spreads. An exact number silently claims it does not,
+//! and the worst case derived from it is optimistic.
+//!
+//! ## Failing example
+//! ```text
+//! reference = 45 uA
+//! ```
+//!
+//! ## Passing example
+//! ```text
+//! reference = 45 uA ± 18 %
+//! ```
+//!
+//! ## How to fix
+//! State the tolerance (`± 18 %`), the asymmetric tolerance (`+10 % -20 %`)
+//! or the range (`low .. high`) from the data sheet, process data or simulation.
+
+use crate::context::Context;
+use guardband_model::{BlockKind, Diagnostic, Severity};
+
+const RULE: &str = "tolerance-missing";
+
+const WATCHED: &[(BlockKind, &[&str])] = &[
+    (BlockKind::Regulator, &["supply", "output", "ambient", "theta_ja"]),
+    (BlockKind::Pin, &["capacitance"]),
+    (BlockKind::Pass, &["full_gate_current", "amplifier_drive"]),
+    (BlockKind::Limit, &["reference", "threshold", "clamp_drive", "fixed_current", "trip_current"]),
+    (BlockKind::Foldback, &["current"]),
+    (BlockKind::ThermalShutdown, &["threshold"]),
+];
+
+pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
+    for reg in ctx.model.regulators() {
+        let mut nodes = vec![reg];
+        nodes.extend(reg.children.iter().map(|c| ctx.node(*c)));
+        for node in nodes {
+            let Some((_, keys)) = WATCHED.iter().find(|(k, _)| *k == node.kind) else { continue };
+            for key in *keys {
+                let Some(v) = node.quantity(key) else { continue };
+                if v.is_exact() {
+                    out.push(
+                        ctx.at(RULE, Severity::Info, node, key, format!(
+                            "`{}.{key}` = {} is exact but feeds a worst-case derivation",
+                            node.path, crate::format::nominal(v)
+                        ))
+                        .primary("no tolerance stated")
+                        .help("state its tolerance (`± 10 %`) or range (`low .. high`)"),
+                    );
+                }
+            }
+        }
+    }
+}
