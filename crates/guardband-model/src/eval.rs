@@ -591,12 +591,12 @@ impl<'a> Evaluator<'a> {
 
     /// Resolves without reporting.
     fn resolve_quiet(&self, from: NodeId, path: &[Ident]) -> Option<Target> {
-        self.lookup_scopes(from, path).ok()
+        self.lookup_scopes(from, path, true).ok()
     }
 
     /// Resolves a dotted path from `from`, reporting an unknown name.
     fn resolve(&mut self, from: NodeId, path: &[Ident], want_block: bool) -> Option<Target> {
-        match self.lookup_scopes(from, path) {
+        match self.lookup_scopes(from, path, want_block) {
             Ok(t) => Some(t),
             Err((bad, candidates)) => {
                 let file = self.file_of(from);
@@ -627,7 +627,7 @@ impl<'a> Evaluator<'a> {
     /// Looks a path up in each enclosing block, then among visible items.
     /// On failure returns the index of the segment that failed and the names
     /// that would have been valid there.
-    fn lookup_scopes(&self, from: NodeId, path: &[Ident]) -> Result<Target, (usize, Vec<String>)> {
+    fn lookup_scopes(&self, from: NodeId, path: &[Ident], want_block: bool) -> Result<Target, (usize, Vec<String>)> {
         let (path, corner) = match path.split_last() {
             Some((last, rest)) if !rest.is_empty() => match last.text.as_str() {
                 "min" => (rest, Some(Corner::Min)),
@@ -641,10 +641,13 @@ impl<'a> Evaluator<'a> {
         let mut scope = Some(from);
         while let Some(s) = scope {
             let node = self.model.node(s);
-            if node.fields.iter().any(|f| f.key == path[0].text) || node.children.iter().any(|c| self.model.node(*c).key() == path[0].text) {
+            let field_hit = !want_block && node.fields.iter().any(|f| f.key == path[0].text);
+            if field_hit || node.children.iter().any(|c| self.model.node(*c).key() == path[0].text) {
                 return self.descend(s, path, corner, 0);
             }
-            candidates.extend(node.fields.iter().map(|f| f.key.clone()));
+            if !want_block {
+                candidates.extend(node.fields.iter().map(|f| f.key.clone()));
+            }
             candidates.extend(node.children.iter().map(|c| self.model.node(*c).key().to_string()));
             scope = node.parent;
         }
@@ -666,7 +669,8 @@ impl<'a> Evaluator<'a> {
     fn descend(&self, node: NodeId, path: &[Ident], corner: Option<Corner>, offset: usize) -> Result<Target, (usize, Vec<String>)> {
         let n = self.model.node(node);
         let seg = &path[0];
-        if let Some(i) = n.fields.iter().position(|f| f.key == seg.text) {
+        let child_first = path.len() > 1 || n.fields.iter().all(|f| f.key != seg.text);
+        if let Some(i) = n.fields.iter().position(|f| f.key == seg.text).filter(|_| !child_first) {
             if path.len() > 1 {
                 return Err((offset + 1, vec!["min".into(), "nom".into(), "max".into()]));
             }

@@ -20,7 +20,10 @@ pub fn in_unit(si: f64, kind: QuantityKind, unit: Option<&str>) -> String {
         if parsed.kind.dim == kind.dim {
             let absolute = kind.is_temperature() && kind.temp == TempSense::Absolute;
             let v = if absolute { parsed.from_si(si) } else { parsed.diff_from_si(si) };
-            return format!("{} {text}", number(v));
+            // Keep the user's unit unless the number would be awkward (150000 uA).
+            if absolute || kind.is_temperature() || (0.1..1000.0).contains(&v.abs()) || v == 0.0 {
+                return format!("{} {text}", number(v));
+            }
         }
     }
     if kind.is_temperature() && kind.temp == TempSense::Absolute {
@@ -66,6 +69,7 @@ mod tests {
         assert_eq!(in_unit(398.15, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C")), "125 °C");
         assert_eq!(in_unit(2.2e-6, QuantityKind::of(guardband_units::Dimension::CAPACITANCE), None), "2.2 uF");
         assert_eq!(percent(0.2), "20 %");
+        assert_eq!(in_unit(0.15, QuantityKind::CURRENT, Some("uA")), "150 mA");
         assert_eq!(number(1234.5), "1235");
     }
 }

@@ -61,7 +61,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     ))
                     .primary(format!("window {} .. {} (worst case)", show(window.lo), show(window.hi)));
                 diag = ctx.label(diag, reg, "load", format!("rated load {}", show(rated)));
-                diag = add_contributors(ctx, diag, lw, window);
+                diag = add_contributors(ctx, diag, window);
                 out.push(diag.help("raise the nominal threshold or tighten the largest contributor; the tool compares worst-case corners"));
                 continue;
             }
@@ -75,7 +75,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             limit.key(), show(stat.lo), crate::format::number(ctx.config.sigma), crate::format::number(ppm)
                         ))
                         .primary(format!("root-sum-square window {} .. {}", show(stat.lo), show(stat.hi)));
-                    diag = add_contributors(ctx, diag, lw, window);
+                    diag = add_contributors(ctx, diag, window);
                     out.push(diag.help("raise the nominal threshold or tighten the largest contributor"));
                 }
             }
@@ -83,12 +83,16 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     }
 }
 
-fn add_contributors(ctx: &Context, mut diag: Diagnostic, lw: &crate::derive::LimitWindow, window: &guardband_model::Value) -> Diagnostic {
+fn add_contributors(ctx: &Context, mut diag: Diagnostic, window: &guardband_model::Value) -> Diagnostic {
     let stat = crate::derive::statistical(window, ctx.config.sigma);
-    let _ = lw;
     for c in stat.contributors.iter().take(3) {
         let s = ctx.model.source(c.source);
-        diag = diag.label(s.file, s.span.clone(), format!("`{}` {}: {} of the spread", s.label, s.text.trim(), percent(c.share)));
+        let swing = if window.nom != 0.0 { c.sigma * ctx.config.sigma / window.nom.abs() } else { 0.0 };
+        diag = diag.label(
+            s.file,
+            s.span.clone(),
+            format!("`{}` moves the window ± {}: {} of the variance", s.label, percent(swing), percent(c.share)),
+        );
     }
     diag
 }

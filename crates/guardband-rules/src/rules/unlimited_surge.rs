@@ -65,7 +65,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         if over.is_empty() {
             continue;
         }
-        let rated = d.rated_load.map(|r| format!(", {}× rated load", crate::format::number(surge / r))).unwrap_or_default();
+        let rated = d.rated_load.map(|r| format!(" ({}× rated load)", crate::format::number(surge / r))).unwrap_or_default();
         let mut diag = ctx
             .at(RULE, Severity::Error, pass, "full_gate_current", format!(
                 "`{}` starts with no limit: the full-gate surge of {}{rated} exceeds {}",
