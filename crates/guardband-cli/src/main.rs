@@ -97,6 +97,7 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
     let (model, model_diagnostics) = guardband_model::check(&ws);
     diagnostics.extend(model_diagnostics);
     diagnostics = guardband_rules::analyse(&ws, &model, &config, diagnostics);
+    ws.normalize_spans(&mut diagnostics);
     diagnostics.sort_by(|a, b| {
         (ws.file(a.file).display.as_str(), a.span.start, a.span.end, a.rule)
             .cmp(&(ws.file(b.file).display.as_str(), b.span.start, b.span.end, b.rule))

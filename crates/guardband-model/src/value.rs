@@ -76,6 +76,11 @@ impl std::fmt::Display for ValueError {
             ValueError::AbsoluteTemperature(why) => f.write_str(why),
             ValueError::DivisorIncludesZero => f.write_str("division by a range that includes zero"),
             ValueError::BadSqrt(why) => f.write_str(why),
+            ValueError::BadTolerance { base, tolerance }
+                if base.is_temperature() && base.temp == TempSense::Absolute && tolerance.dim.is_none() =>
+            {
+                f.write_str("a percentage of an absolute temperature depends on the temperature scale; give the tolerance in K")
+            }
             ValueError::BadTolerance { base, tolerance } => write!(
                 f,
                 "a tolerance on {} must be relative (%, ppm) or {}, found {}",

@@ -47,6 +47,29 @@ impl Workspace {
         id
     }
 
+    /// Makes every span of `diagnostics` a valid, ordered range on character
+    /// boundaries of its file, so that no front end can be handed a bad span.
+    pub fn normalize_spans(&self, diagnostics: &mut [crate::Diagnostic]) {
+        let fix = |file: FileId, span: &mut guardband_syntax::Span| {
+            let text = &self.file(file).text;
+            let snap = |mut o: usize| {
+                o = o.min(text.len());
+                while !text.is_char_boundary(o) {
+                    o -= 1;
+                }
+                o
+            };
+            let (a, b) = (snap(span.start), snap(span.end));
+            *span = a.min(b)..a.max(b);
+        };
+        for d in diagnostics {
+            fix(d.file, &mut d.span);
+            for l in &mut d.labels {
+                fix(l.file, &mut l.span);
+            }
+        }
+    }
+
     /// Looks a file up by canonical path.
     pub fn find(&self, path: &Path) -> Option<FileId> {
         self.files.iter().find(|f| f.path == path).map(|f| f.id)

@@ -15,6 +15,8 @@ pub struct Config {
     pub statistical: bool,
     /// How many standard deviations one stated ± stands for.
     pub sigma: f64,
+    /// Largest fraction of parts, in ppm, allowed to trip below rated load plus margin.
+    pub escape_ppm: f64,
     /// Target lifetime for conductor ratings, in seconds (None: no lifetime derating).
     pub lifetime: Option<f64>,
     /// Exit 1 on warnings too.
@@ -31,6 +33,7 @@ impl Default for Config {
             margin: 0.2,
             statistical: true,
             sigma: 3.0,
+            escape_ppm: 1.0,
             lifetime: None,
             deny_warnings: false,
             severities: HashMap::new(),
@@ -44,6 +47,7 @@ pub const KEYS: &[(&str, &str, &str, &str)] = &[
     ("margin", "a percentage string such as \"20 %\", or a fraction", "required margin of a limit's low edge above rated load", "\"20 %\" (common practice, no source)"),
     ("statistical", "true or false", "also check the root-sum-square window", "true"),
     ("sigma", "a number", "how many standard deviations a stated ± stands for", "3"),
+    ("escape_ppm", "a number", "largest share of parts (ppm) whose limit may trip below rated load plus margin, by the normal approximation", "1 (common practice, no source)"),
     ("lifetime", "a time string such as \"10 yr\"", "target lifetime for electromigration ratings", "none (no lifetime derating)"),
     ("deny", "a list, e.g. [\"warnings\"]", "also fail on warnings", "[]"),
     ("[rules]", "rule = \"error\" | \"warning\" | \"info\" | \"off\"", "per-rule severity", "each rule's default"),
@@ -105,7 +109,7 @@ impl Config {
                 return (config, diags);
             }
         };
-        let known = ["margin", "statistical", "sigma", "lifetime", "deny", "rules"];
+        let known = ["margin", "statistical", "sigma", "escape_ppm", "lifetime", "deny", "rules"];
         for (key, value) in &table {
             match key.as_str() {
                 "margin" => match value {
@@ -124,6 +128,11 @@ impl Config {
                     toml::Value::Float(f) if *f > 0.0 => config.sigma = *f,
                     toml::Value::Integer(i) if *i > 0 => config.sigma = *i as f64,
                     _ => diags.push(bad(key, "`sigma` takes a positive number".into(), "write e.g. `sigma = 3`")),
+                },
+                "escape_ppm" => match value {
+                    toml::Value::Float(f) if *f >= 0.0 => config.escape_ppm = *f,
+                    toml::Value::Integer(i) if *i >= 0 => config.escape_ppm = *i as f64,
+                    _ => diags.push(bad(key, "`escape_ppm` takes a number of parts per million".into(), "write e.g. `escape_ppm = 1`")),
                 },
                 "lifetime" => match value.as_str().and_then(quantity) {
                     Some((v, k)) if k.dim == guardband_units::Dimension::TIME && v > 0.0 => config.lifetime = Some(v),

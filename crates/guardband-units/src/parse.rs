@@ -124,14 +124,30 @@ fn split_power<'a>(piece: &'a str, whole: &str) -> Result<(&'a str, i32), UnitEr
 /// Unit symbols within a small edit distance of `atom`, closest first.
 fn suggest(atom: &str) -> Vec<String> {
     let lower = atom.to_lowercase();
-    let mut found: Vec<(usize, &str)> = UNITS
-        .iter()
-        .map(|u| (edit_distance(&lower, &u.symbol.to_lowercase()), u.symbol))
-        .filter(|(d, _)| *d <= 1 || (*d == 0))
-        .collect();
+    let mut found: Vec<(usize, String)> = Vec::new();
+    for u in UNITS {
+        let d = edit_distance(&lower, &u.symbol.to_lowercase());
+        if d <= 1 && u.symbol.chars().count() > 1 {
+            found.push((d, u.symbol.to_string()));
+        }
+        // Spelled-out names: `volt` -> `V`, `ohms` -> `ohm`.
+        if edit_distance(&lower, u.name) <= 1 || lower.trim_end_matches('s') == u.name {
+            found.push((0, u.symbol.to_string()));
+        }
+    }
+    // A known prefix in front of a near-miss: `mAA` -> `mA`.
+    for p in crate::table::PREFIXES {
+        if let Some(rest) = atom.strip_prefix(p.symbol) {
+            for u in UNITS.iter().filter(|u| u.prefixable) {
+                if !rest.is_empty() && edit_distance(rest, u.symbol) == 1 && rest.starts_with(u.symbol) {
+                    found.push((1, format!("{}{}", p.symbol, u.symbol)));
+                }
+            }
+        }
+    }
     found.sort();
     found.dedup_by(|a, b| a.1 == b.1);
-    found.into_iter().take(3).map(|(_, s)| s.to_string()).collect()
+    found.into_iter().take(3).map(|(_, s)| s).collect()
 }
 
 fn edit_distance(a: &str, b: &str) -> usize {
@@ -215,6 +231,14 @@ mod tests {
         assert!(matches!(parse_unit("m^x"), Err(UnitError::Malformed(_))));
         assert!(matches!(parse_unit("m^99"), Err(UnitError::Malformed(_))));
         assert!(matches!(parse_unit("k%"), Err(UnitError::Unknown { .. })));
+        match parse_unit("mAA") {
+            Err(UnitError::Unknown { suggestions, .. }) => assert_eq!(suggestions.first().map(String::as_str), Some("mA")),
+            other => panic!("unexpected {other:?}"),
+        }
+        match parse_unit("Volt") {
+            Err(UnitError::Unknown { suggestions, .. }) => assert!(suggestions.contains(&"V".to_string())),
+            other => panic!("unexpected {other:?}"),
+        }
         match parse_unit("ohms") {
             Err(UnitError::Unknown { suggestions, .. }) => assert!(suggestions.contains(&"ohm".to_string())),
             other => panic!("unexpected {other:?}"),

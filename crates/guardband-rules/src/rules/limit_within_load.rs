@@ -1,9 +1,12 @@
 //! ## What it flags
 //! A current limit whose window reaches down to the rated load plus the
 //! required margin: the worst-case low edge (every stated tolerance at its
-//! extreme) and, when `statistical = true`, the root-sum-square low edge
-//! (mean − sigma·σ). For the undervoltage-triggered scheme the characterised
-//! trip current is checked, since the fixed current may sit below the load.
+//! extreme) and, when `statistical = true`, the share of parts whose
+//! threshold falls there: each stated ± is taken as `sigma` standard
+//! deviations, the contributions are combined by root-sum-square, and the
+//! normal tail below rated load plus margin must not exceed `escape_ppm`.
+//! For the undervoltage-triggered scheme the characterised trip current is
+//! checked, since the fixed current may sit below the load.
 //!
 //! ## Why it matters
 //! A limit that trips inside normal operation drops the output under rated
@@ -67,14 +70,17 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             }
             if ctx.config.statistical && lw.scheme == crate::derive::Scheme::Replica {
                 let stat = &lw.stat;
-                if stat.lo <= required {
-                    let ppm = crate::derive::escape_ppm(stat, required);
+                let ppm = crate::derive::escape_ppm(stat, required);
+                if ppm > ctx.config.escape_ppm {
                     let mut diag = ctx
                         .at(RULE, Severity::Error, limit, key, format!(
-                            "`{}` limit statistical low edge {} (mean − {}σ) is at or below {need}; about {} ppm of parts",
-                            limit.key(), show(stat.lo), crate::format::number(ctx.config.sigma), crate::format::number(ppm)
+                            "about {} ppm of parts trip `{}` at or below {need} (allowed {} ppm)",
+                            crate::format::number(ppm), limit.key(), crate::format::number(ctx.config.escape_ppm)
                         ))
-                        .primary(format!("root-sum-square window {} .. {}", show(stat.lo), show(stat.hi)));
+                        .primary(format!(
+                            "statistically {} ± {} (1σ); worst case {} .. {}",
+                            show(stat.mean), show(stat.sigma), show(window.lo), show(window.hi)
+                        ));
                     diag = add_contributors(ctx, diag, window);
                     out.push(diag.help("raise the nominal threshold or tighten the largest contributor"));
                 }
