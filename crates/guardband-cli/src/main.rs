@@ -53,7 +53,23 @@ enum Command {
     },
 }
 
+/// Stack for the checking thread: evaluation recurses over expression trees,
+/// whose depth the parser bounds; this leaves ample room for that bound.
+const STACK_BYTES: usize = 256 * 1024 * 1024;
+
 fn main() -> ExitCode {
+    std::panic::set_hook(Box::new(|info| {
+        eprintln!("guardband: internal error: {info}");
+        eprintln!("guardband: this is a bug; please report it with the input that caused it");
+    }));
+    let worker = std::thread::Builder::new().stack_size(STACK_BYTES).spawn(run);
+    match worker.map(|handle| handle.join()) {
+        Ok(Ok(code)) => code,
+        _ => ExitCode::from(2),
+    }
+}
+
+fn run() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(e) => {

@@ -70,6 +70,7 @@ mod tests {
         assert_eq!(in_unit(2.2e-6, QuantityKind::of(guardband_units::Dimension::CAPACITANCE), None), "2.2 uF");
         assert_eq!(percent(0.2), "20 %");
         assert_eq!(in_unit(0.15, QuantityKind::CURRENT, Some("uA")), "150 mA");
-        assert_eq!(number(1234.5), "1235");
+        assert_eq!(number(1234.6), "1235");
+        assert_eq!(number(0.000123), "0.000123");
     }
 }

@@ -17,6 +17,22 @@ pub const MAX_NESTING: usize = 48;
 /// Most syntax errors reported for one file; the rest are counted in a final error.
 pub const MAX_ERRORS: usize = 50;
 
+/// Most operands one chain of `+ -` or `* /` may have; longer chains are one
+/// error, so that no expression tree is deep enough to exhaust the stack.
+pub const MAX_CHAIN: usize = 64;
+
+/// Builds a left-nested chain `a op b op c`; an error (span, message) if it is too long.
+fn chain((first, rest): (Expr, Vec<(BinaryOp, Expr)>)) -> Result<Expr, (Span, String)> {
+    if rest.len() >= MAX_CHAIN {
+        let span = first.span.start..rest.last().map(|(_, x)| x.span.end).unwrap_or(first.span.end);
+        return Err((span, format!("more than {MAX_CHAIN} operands in one expression; split it into named fields")));
+    }
+    Ok(rest.into_iter().fold(first, |a, (op, b)| {
+        let span = a.span.start..b.span.end;
+        Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span }
+    }))
+}
+
 /// A syntax error with the span it points at.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SyntaxError {
@@ -276,9 +292,17 @@ where
         let unary = just(Token::Minus)
             .map_with(|_, e| range(e.span()))
             .repeated()
-            .foldr(primary, |minus_span, inner| {
-                let span = minus_span.start..inner.span.end;
-                negate(inner, span)
+            .collect::<Vec<Span>>()
+            .then(primary)
+            .validate(|(minuses, inner), e, emitter| {
+                if minuses.len() > MAX_CHAIN {
+                    emitter.emit(Rich::custom(e.span(), format!("more than {MAX_CHAIN} signs in a row")));
+                    return Expr { kind: ExprKind::Error, span: range(e.span()) };
+                }
+                minuses.into_iter().rev().fold(inner, |inner, minus_span| {
+                    let span = minus_span.start..inner.span.end;
+                    negate(inner, span)
+                })
             });
 
         // `+10 % -20 %`: both signs written against their numbers.
@@ -317,16 +341,26 @@ where
             });
 
         let product_op = just(Token::Star).to(BinaryOp::Mul).or(just(Token::Slash).to(BinaryOp::Div));
-        let product = toleranced.clone().foldl_with(
-            product_op.then(toleranced).repeated(),
-            |a, (op, b), e| Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span: range(e.span()) },
-        );
+        let product = toleranced
+            .clone()
+            .then(product_op.then(toleranced).repeated().collect::<Vec<_>>())
+            .validate(|parts, _, emitter| {
+                chain(parts).unwrap_or_else(|(span, msg)| {
+                    emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
+                    Expr { kind: ExprKind::Error, span }
+                })
+            });
 
         let sum_op = just(Token::Plus).to(BinaryOp::Add).or(just(Token::Minus).to(BinaryOp::Sub));
-        let sum = product.clone().foldl_with(
-            sum_op.then(product).repeated(),
-            |a, (op, b), e| Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span: range(e.span()) },
-        );
+        let sum = product
+            .clone()
+            .then(sum_op.then(product).repeated().collect::<Vec<_>>())
+            .validate(|parts, _, emitter| {
+                chain(parts).unwrap_or_else(|(span, msg)| {
+                    emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
+                    Expr { kind: ExprKind::Error, span }
+                })
+            });
 
         sum.clone()
             .then(just(Token::DotDot).ignore_then(sum).or_not())

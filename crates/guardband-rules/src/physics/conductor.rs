@@ -116,7 +116,7 @@ mod tests {
         let t = ThermodynamicTemperature::new::<degree_celsius>(125.0);
         let t_ref = ThermodynamicTemperature::new::<degree_celsius>(105.0);
         let r = black_derating(p, t, t_ref, None).value;
-        let expected = (0.7 / (2.0 * 8.617_333_262e-5) * (1.0 / 398.15 - 1.0 / 378.15)).exp();
+        let expected = (0.7_f64 / (2.0 * 8.617_333_262e-5) * (1.0 / 398.15 - 1.0 / 378.15)).exp();
         assert!(close(r, expected, 1e-6));
         assert!(close(r, 0.5830, 1e-3));
         // Equal temperatures and lifetimes: no derating.

@@ -51,7 +51,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         .help(format!("add `fault {}_short {{ pin = {}  event = short_to_ground }}`", pin.key(), pin.key())),
                 );
             }
-            if pin.field("capacitance").is_some()
+            if pin.quantity("capacitance").is_some()
                 && !faults
                     .iter()
                     .any(|f| event(f) == Some("startup") && (f.reference("pin").is_none() || f.reference("pin") == Some(pin.id)))

@@ -1,0 +1,49 @@
+//! Snapshot tests of the rendered diagnostics: one snapshot per bad fixture
+//! and per rule fixture, as a user sees them on a terminal without colour.
+
+mod common;
+use common::*;
+
+fn snapshot(name: &str, text: &str) {
+    let mut settings = insta::Settings::clone_current();
+    settings.set_snapshot_path(root().join("tests/snapshots"));
+    settings.set_prepend_module_to_snapshot(false);
+    settings.bind(|| insta::assert_snapshot!(name, text));
+}
+
+#[test]
+fn diagnostics_fixtures() {
+    let dir = fixture("diagnostics");
+    let mut files: Vec<_> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().path()).collect();
+    files.sort();
+    for file in files {
+        let name = file.file_name().unwrap().to_string_lossy().into_owned();
+        let run = guardband(&dir, &["check", &name]);
+        snapshot(&format!("diagnostics__{}", name.trim_end_matches(".guard")), &run.stdout);
+    }
+}
+
+#[test]
+fn workspace_fixtures() {
+    for ws in ["import_cycle", "outside/inner", "bad_config"] {
+        let run = guardband(&fixture(&format!("workspaces/{ws}")), &["check", "."]);
+        snapshot(&format!("workspace__{}", ws.replace('/', "_")), &run.stdout);
+    }
+}
+
+#[test]
+fn rule_fixtures() {
+    let dir = fixture("rules");
+    let mut rules: Vec<_> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().path()).collect();
+    rules.sort();
+    for rule_dir in rules {
+        let rule = rule_dir.file_name().unwrap().to_string_lossy().into_owned();
+        let mut files: Vec<_> = std::fs::read_dir(&rule_dir).unwrap().map(|e| e.unwrap().path()).collect();
+        files.sort();
+        for file in files {
+            let name = file.file_name().unwrap().to_string_lossy().into_owned();
+            let run = guardband(&rule_dir, &["check", &name]);
+            snapshot(&format!("rule__{rule}__{}", name.trim_end_matches(".guard")), &run.stdout);
+        }
+    }
+}
