@@ -8,8 +8,18 @@ use common::*;
 fn examples_show_each_rule_where_documented() {
     let root = root();
     let run = guardband(&root, &["check", "examples/"]);
-    assert_eq!(run.code, 1, "the flawed examples have errors:\n{}", run.stdout);
-    assert!(run.stdout.trim_end().ends_with("8 errors, 4 warnings, 1 info in 6 files"), "{}", run.stdout);
+    assert_eq!(
+        run.code, 1,
+        "the flawed examples have errors:\n{}",
+        run.stdout
+    );
+    assert!(
+        run.stdout
+            .trim_end()
+            .ends_with("8 errors, 4 warnings, 1 info in 6 files"),
+        "{}",
+        run.stdout
+    );
     let (_, report) = check_json(&root, &["examples/"]);
     let expected = [
         ("limit-within-load", "flawed/aux_rail.guard"),
@@ -27,20 +37,38 @@ fn examples_show_each_rule_where_documented() {
     for d in report["diagnostics"].as_array().unwrap() {
         let rule = d["rule"].as_str().unwrap();
         let file = d["file"].as_str().unwrap();
-        assert!(expected.contains(&(rule, file)), "unexpected {rule} in {file}: {}", d["message"]);
+        assert!(
+            expected.contains(&(rule, file)),
+            "unexpected {rule} in {file}: {}",
+            d["message"]
+        );
     }
     let rules = rules_of(&report);
     for (rule, _) in expected {
-        assert!(rules.iter().any(|r| r == rule), "{rule} does not fire in examples/");
+        assert!(
+            rules.iter().any(|r| r == rule),
+            "{rule} does not fire in examples/"
+        );
     }
 }
 
 #[test]
 fn clean_examples_pass() {
     let root = root();
-    let run = guardband(&root, &["check", "examples/sensor_rail.guard", "examples/radio_rail.guard"]);
+    let run = guardband(
+        &root,
+        &[
+            "check",
+            "examples/sensor_rail.guard",
+            "examples/radio_rail.guard",
+        ],
+    );
     assert_eq!(run.code, 0, "{}", run.stdout);
-    assert!(run.stdout.contains("0 errors, 0 warnings in 3 files"), "{}", run.stdout);
+    assert!(
+        run.stdout.contains("0 errors, 0 warnings in 3 files"),
+        "{}",
+        run.stdout
+    );
 }
 
 #[test]
@@ -56,8 +84,14 @@ fn every_rule_fixture_fails_and_passes_as_named() {
             let (_, report) = check_json(&rule_dir, &[file.file_name().unwrap().to_str().unwrap()]);
             let rules = rules_of(&report);
             if name.starts_with("fail") {
-                assert!(rules.iter().any(|r| *r == rule), "{rule}/{name} does not trip {rule}: {rules:?}");
-                assert!(rules.iter().all(|r| *r == rule), "{rule}/{name} trips others too: {rules:?}");
+                assert!(
+                    rules.contains(&rule),
+                    "{rule}/{name} does not trip {rule}: {rules:?}"
+                );
+                assert!(
+                    rules.iter().all(|r| *r == rule),
+                    "{rule}/{name} trips others too: {rules:?}"
+                );
             } else {
                 assert!(rules.is_empty(), "{rule}/{name} is not clean: {rules:?}");
             }
@@ -75,7 +109,9 @@ fn json_follows_the_documented_schema() {
     assert_eq!(report["version"], 1);
     assert_eq!(report["files_checked"], 1);
     let first = &report["diagnostics"][0];
-    for key in ["rule", "severity", "file", "range", "message", "labels", "help"] {
+    for key in [
+        "rule", "severity", "file", "range", "message", "labels", "help",
+    ] {
         assert!(first.get(key).is_some(), "missing {key}");
     }
     assert_eq!(first["file"], "unit_mismatch.guard");
@@ -93,9 +129,18 @@ fn json_follows_the_documented_schema() {
 fn json_columns_count_unicode_scalar_values() {
     let dir = temp_dir("columns");
     // Line 2 starts with `µ`-heavy text: 2-byte and 4-byte characters before the bad unit.
-    std::fs::write(dir.join("c.guard"), "regulator r {\n    description = \"µΩ𝄞\"  load = 0 mA .. 1 mAA\n}\n").unwrap();
+    std::fs::write(
+        dir.join("c.guard"),
+        "regulator r {\n    description = \"µΩ𝄞\"  load = 0 mA .. 1 mAA\n}\n",
+    )
+    .unwrap();
     let (_, report) = check_json(&dir, &["c.guard"]);
-    let d = report["diagnostics"].as_array().unwrap().iter().find(|d| d["rule"] == "unknown-unit").expect("unknown-unit");
+    let d = report["diagnostics"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|d| d["rule"] == "unknown-unit")
+        .expect("unknown-unit");
     // `    description = "µΩ𝄞"  load = 0 mA .. 1 ` is 42 characters (47 bytes, 43 UTF-16
     // units), so the unit starts at column 43 counted in Unicode scalar values.
     assert_eq!(d["range"]["start"]["line"], 2);
@@ -106,12 +151,20 @@ fn json_columns_count_unicode_scalar_values() {
 fn exit_codes() {
     let dir = fixture("rules/missing-fault-case");
     let warn_only = guardband(&dir, &["check", "fail.guard"]);
-    assert_eq!(warn_only.code, 0, "warnings alone pass: {}", warn_only.stdout);
+    assert_eq!(
+        warn_only.code, 0,
+        "warnings alone pass: {}",
+        warn_only.stdout
+    );
     let denied = guardband(&dir, &["check", "--deny", "warnings", "fail.guard"]);
     assert_eq!(denied.code, 1);
     let missing = guardband(&dir, &["check", "no/such/place.guard"]);
     assert_eq!(missing.code, 2);
-    assert!(missing.stderr.contains("no/such/place.guard"), "{}", missing.stderr);
+    assert!(
+        missing.stderr.contains("no/such/place.guard"),
+        "{}",
+        missing.stderr
+    );
     let usage = guardband(&dir, &["check", "--format", "xml"]);
     assert_eq!(usage.code, 2);
     let errors = guardband(&fixture("diagnostics"), &["check", "syntax.guard"]);
@@ -122,7 +175,11 @@ fn exit_codes() {
 fn syntax_errors_are_all_reported_and_the_rest_is_checked() {
     let (_, report) = check_json(&fixture("diagnostics"), &["syntax.guard"]);
     let rules = rules_of(&report);
-    assert_eq!(rules.iter().filter(|r| *r == "syntax").count(), 3, "{rules:?}");
+    assert_eq!(
+        rules.iter().filter(|r| *r == "syntax").count(),
+        3,
+        "{rules:?}"
+    );
     // The second regulator, after the errors, is still evaluated.
     assert!(rules.iter().any(|r| r == "unit-mismatch"), "{rules:?}");
 }
@@ -141,8 +198,16 @@ fn workspace_root_is_the_nearest_config() {
     // Checking a file inside examples/ from the repository root finds examples/guardband.toml,
     // so paths are shown relative to examples/ and the import of the process file works.
     let (_, report) = check_json(&root(), &["examples/flawed/wake_rail.guard"]);
-    let files: Vec<&str> = report["diagnostics"].as_array().unwrap().iter().map(|d| d["file"].as_str().unwrap()).collect();
-    assert!(files.iter().all(|f| *f == "flawed/wake_rail.guard"), "{files:?}");
+    let files: Vec<&str> = report["diagnostics"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|d| d["file"].as_str().unwrap())
+        .collect();
+    assert!(
+        files.iter().all(|f| *f == "flawed/wake_rail.guard"),
+        "{files:?}"
+    );
     assert_eq!(report["files_checked"], 2);
 }
 
@@ -150,11 +215,22 @@ fn workspace_root_is_the_nearest_config() {
 fn bad_configuration_is_reported_with_its_line() {
     let (code, report) = check_json(&fixture("workspaces/bad_config"), &["."]);
     assert_eq!(code, 1);
-    let config: Vec<&serde_json::Value> = report["diagnostics"].as_array().unwrap().iter().filter(|d| d["rule"] == "config").collect();
+    let config: Vec<&serde_json::Value> = report["diagnostics"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|d| d["rule"] == "config")
+        .collect();
     assert_eq!(config.len(), 4, "{config:?}");
-    let lines: Vec<u64> = config.iter().map(|d| d["range"]["start"]["line"].as_u64().unwrap()).collect();
+    let lines: Vec<u64> = config
+        .iter()
+        .map(|d| d["range"]["start"]["line"].as_u64().unwrap())
+        .collect();
     for line in [1, 2, 4, 5] {
-        assert!(lines.contains(&line), "no config error on line {line}: {lines:?}");
+        assert!(
+            lines.contains(&line),
+            "no config error on line {line}: {lines:?}"
+        );
     }
     assert!(config.iter().all(|d| d["file"] == "guardband.toml"));
 }
@@ -162,12 +238,24 @@ fn bad_configuration_is_reported_with_its_line() {
 #[test]
 fn rule_severity_can_be_changed_or_turned_off() {
     let dir = temp_dir("severity");
-    std::fs::copy(fixture("rules/clamp-too-weak/fail.guard"), dir.join("r.guard")).unwrap();
-    std::fs::write(dir.join("guardband.toml"), "[rules]\nclamp-too-weak = \"warning\"\n").unwrap();
+    std::fs::copy(
+        fixture("rules/clamp-too-weak/fail.guard"),
+        dir.join("r.guard"),
+    )
+    .unwrap();
+    std::fs::write(
+        dir.join("guardband.toml"),
+        "[rules]\nclamp-too-weak = \"warning\"\n",
+    )
+    .unwrap();
     let (code, report) = check_json(&dir, &["."]);
     assert_eq!(code, 0);
     assert_eq!(report["diagnostics"][0]["severity"], "warning");
-    std::fs::write(dir.join("guardband.toml"), "[rules]\nclamp-too-weak = \"off\"\n").unwrap();
+    std::fs::write(
+        dir.join("guardband.toml"),
+        "[rules]\nclamp-too-weak = \"off\"\n",
+    )
+    .unwrap();
     let (_, report) = check_json(&dir, &["."]);
     assert!(rules_of(&report).is_empty());
 }
@@ -176,8 +264,16 @@ fn rule_severity_can_be_changed_or_turned_off() {
 fn waivers_need_a_reason_and_unused_ones_are_reported() {
     let (_, report) = check_json(&fixture("diagnostics"), &["waivers.guard"]);
     let rules = rules_of(&report);
-    assert_eq!(rules.iter().filter(|r| *r == "invalid-suppression").count(), 2, "{rules:?}");
-    assert_eq!(rules.iter().filter(|r| *r == "unused-suppression").count(), 1, "{rules:?}");
+    assert_eq!(
+        rules.iter().filter(|r| *r == "invalid-suppression").count(),
+        2,
+        "{rules:?}"
+    );
+    assert_eq!(
+        rules.iter().filter(|r| *r == "unused-suppression").count(),
+        1,
+        "{rules:?}"
+    );
     // The lamp rail's waiver with a reason hides its finding.
     let (_, report) = check_json(&root(), &["examples/flawed/lamp_rail.guard"]);
     assert!(!rules_of(&report).contains(&"tolerance-missing".to_string()));
@@ -198,7 +294,9 @@ fn explain_lists_and_documents_every_rule() {
         let name = r["name"].as_str().unwrap();
         let one = guardband(&root, &["explain", name]);
         assert_eq!(one.code, 0);
-        assert!(one.stdout.contains("## Failing example") && one.stdout.contains("## Passing example"));
+        assert!(
+            one.stdout.contains("## Failing example") && one.stdout.contains("## Passing example")
+        );
         assert!(one.stdout.contains("does not replace sign-off"));
     }
     let unknown = guardband(&root, &["explain", "limit-within-lod"]);

@@ -7,7 +7,10 @@ use std::process::Command;
 
 /// The workspace root (the folder holding `tests/`).
 pub fn root() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..").canonicalize().expect("workspace root")
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../..")
+        .canonicalize()
+        .expect("workspace root")
 }
 
 /// A fixture path under `tests/fixtures`.
@@ -42,7 +45,8 @@ pub fn check_json(cwd: &Path, args: &[&str]) -> (i32, serde_json::Value) {
     let mut all = vec!["check", "--format", "json"];
     all.extend_from_slice(args);
     let run = guardband(cwd, &all);
-    let value = serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("bad JSON ({e}): {}\n{}", run.stdout, run.stderr));
+    let value = serde_json::from_str(&run.stdout)
+        .unwrap_or_else(|e| panic!("bad JSON ({e}): {}\n{}", run.stdout, run.stderr));
     (run.code, value)
 }
 

@@ -7,8 +7,17 @@ fn check_bytes(name: &str, bytes: &[u8]) -> Run {
     let dir = temp_dir(name);
     std::fs::write(dir.join("input.guard"), bytes).unwrap();
     let run = guardband(&dir, &["check", "input.guard"]);
-    assert!(run.code == 0 || run.code == 1, "{name}: exit {} (stderr: {})", run.code, run.stderr);
-    assert!(run.stdout.contains("in 1 file"), "{name}: no summary: {}", run.stdout);
+    assert!(
+        run.code == 0 || run.code == 1,
+        "{name}: exit {} (stderr: {})",
+        run.code,
+        run.stderr
+    );
+    assert!(
+        run.stdout.contains("in 1 file"),
+        "{name}: no summary: {}",
+        run.stdout
+    );
     assert!(!run.stderr.contains("panicked"), "{name}: {}", run.stderr);
     run
 }
@@ -16,7 +25,10 @@ fn check_bytes(name: &str, bytes: &[u8]) -> Run {
 #[test]
 fn empty_and_comment_only_files_pass() {
     assert_eq!(check_bytes("empty", b"").code, 0);
-    assert_eq!(check_bytes("comments", b"// nothing here\n// at all\n").code, 0);
+    assert_eq!(
+        check_bytes("comments", b"// nothing here\n// at all\n").code,
+        0
+    );
 }
 
 #[test]
@@ -24,7 +36,11 @@ fn invalid_utf8_is_one_clear_error() {
     let run = check_bytes("utf8", b"regulator r {\n  load = 0 mA .. \xff\xfe mA\n}\n");
     assert_eq!(run.code, 1);
     assert!(run.stdout.contains("not valid UTF-8"), "{}", run.stdout);
-    assert!(run.stdout.contains("input.guard:2:"), "points at line 2: {}", run.stdout);
+    assert!(
+        run.stdout.contains("input.guard:2:"),
+        "points at line 2: {}",
+        run.stdout
+    );
 }
 
 #[test]
@@ -37,7 +53,11 @@ fn nul_byte_is_reported_as_binary() {
 #[test]
 fn ten_thousand_nested_parentheses() {
     let depth = 10_000;
-    let text = format!("regulator r {{ load = {}1 mA{} }}\n", "(".repeat(depth), ")".repeat(depth));
+    let text = format!(
+        "regulator r {{ load = {}1 mA{} }}\n",
+        "(".repeat(depth),
+        ")".repeat(depth)
+    );
     let run = check_bytes("nesting", text.as_bytes());
     assert!(run.stdout.contains("nesting deeper than"), "{}", run.stdout);
     let unclosed = format!("regulator r {{ load = {}\n", "(".repeat(depth));
@@ -48,7 +68,10 @@ fn ten_thousand_nested_parentheses() {
 fn five_megabyte_single_lines() {
     let comment = format!("// {}\n", "x".repeat(5 * 1024 * 1024));
     assert_eq!(check_bytes("long_comment", comment.as_bytes()).code, 0);
-    let sum = format!("regulator r {{ load = 0 mA .. 1 mA{} }}", " + 1 mA".repeat(5 * 1024 * 1024 / 7));
+    let sum = format!(
+        "regulator r {{ load = 0 mA .. 1 mA{} }}",
+        " + 1 mA".repeat(5 * 1024 * 1024 / 7)
+    );
     check_bytes("long_sum", sum.as_bytes());
     let junk = "@#$ ".repeat(5 * 1024 * 1024 / 4);
     let run = check_bytes("long_junk", junk.as_bytes());
@@ -70,9 +93,37 @@ fn crlf_and_bom_are_transparent() {
 fn random_bytes_never_panic() {
     // A fixed pseudo-random sequence (xorshift) over the token alphabet and raw bytes.
     let alphabet: Vec<&[u8]> = vec![
-        b"regulator ", b"process ", b"use ", b"\"x.guard\" ", b"{", b"}", b"(", b")", b"=", b"..", b"+/-",
-        "±".as_bytes(), b"mA", b" 1.5 ", b"-", b"*", b"/", b".", b",", b"pin ", b"limit ", b"\n", b"//", b"<=",
-        b"x", b"pass", b"true", "°C".as_bytes(), b"\r\n", b"^", b"2e400",
+        b"regulator ",
+        b"process ",
+        b"use ",
+        b"\"x.guard\" ",
+        b"{",
+        b"}",
+        b"(",
+        b")",
+        b"=",
+        b"..",
+        b"+/-",
+        "±".as_bytes(),
+        b"mA",
+        b" 1.5 ",
+        b"-",
+        b"*",
+        b"/",
+        b".",
+        b",",
+        b"pin ",
+        b"limit ",
+        b"\n",
+        b"//",
+        b"<=",
+        b"x",
+        b"pass",
+        b"true",
+        "°C".as_bytes(),
+        b"\r\n",
+        b"^",
+        b"2e400",
     ];
     let mut state: u64 = 0x9E37_79B9_7F4A_7C15;
     let mut next = || {

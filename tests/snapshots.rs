@@ -14,12 +14,18 @@ fn snapshot(name: &str, text: &str) {
 #[test]
 fn diagnostics_fixtures() {
     let dir = fixture("diagnostics");
-    let mut files: Vec<_> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().path()).collect();
+    let mut files: Vec<_> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
     files.sort();
     for file in files {
         let name = file.file_name().unwrap().to_string_lossy().into_owned();
         let run = guardband(&dir, &["check", &name]);
-        snapshot(&format!("diagnostics__{}", name.trim_end_matches(".guard")), &run.stdout);
+        snapshot(
+            &format!("diagnostics__{}", name.trim_end_matches(".guard")),
+            &run.stdout,
+        );
     }
 }
 
@@ -34,16 +40,25 @@ fn workspace_fixtures() {
 #[test]
 fn rule_fixtures() {
     let dir = fixture("rules");
-    let mut rules: Vec<_> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().path()).collect();
+    let mut rules: Vec<_> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
     rules.sort();
     for rule_dir in rules {
         let rule = rule_dir.file_name().unwrap().to_string_lossy().into_owned();
-        let mut files: Vec<_> = std::fs::read_dir(&rule_dir).unwrap().map(|e| e.unwrap().path()).collect();
+        let mut files: Vec<_> = std::fs::read_dir(&rule_dir)
+            .unwrap()
+            .map(|e| e.unwrap().path())
+            .collect();
         files.sort();
         for file in files {
             let name = file.file_name().unwrap().to_string_lossy().into_owned();
             let run = guardband(&rule_dir, &["check", &name]);
-            snapshot(&format!("rule__{rule}__{}", name.trim_end_matches(".guard")), &run.stdout);
+            snapshot(
+                &format!("rule__{rule}__{}", name.trim_end_matches(".guard")),
+                &run.stdout,
+            );
         }
     }
 }

@@ -43,8 +43,16 @@ fn walk(dir: &Path, out: &mut Vec<PathBuf>) -> std::io::Result<()> {
 
 /// The nearest folder at or above `start` holding `guardband.toml`, else `cwd`.
 pub fn workspace_root(start: &Path, cwd: &Path) -> PathBuf {
-    let start = if start.is_absolute() { start.to_path_buf() } else { cwd.join(start) };
-    let mut dir = if start.is_dir() { Some(start.as_path()) } else { start.parent() };
+    let start = if start.is_absolute() {
+        start.to_path_buf()
+    } else {
+        cwd.join(start)
+    };
+    let mut dir = if start.is_dir() {
+        Some(start.as_path())
+    } else {
+        start.parent()
+    };
     while let Some(d) = dir {
         if d.join("guardband.toml").is_file() {
             return d.to_path_buf();

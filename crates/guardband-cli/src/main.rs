@@ -62,7 +62,9 @@ fn main() -> ExitCode {
         eprintln!("guardband: internal error: {info}");
         eprintln!("guardband: this is a bug; please report it with the input that caused it");
     }));
-    let worker = std::thread::Builder::new().stack_size(STACK_BYTES).spawn(run);
+    let worker = std::thread::Builder::new()
+        .stack_size(STACK_BYTES)
+        .spawn(run);
     match worker.map(|handle| handle.join()) {
         Ok(Ok(code)) => code,
         _ => ExitCode::from(2),
@@ -74,11 +76,19 @@ fn run() -> ExitCode {
         Ok(cli) => cli,
         Err(e) => {
             let _ = e.print();
-            return if e.use_stderr() { ExitCode::from(2) } else { ExitCode::SUCCESS };
+            return if e.use_stderr() {
+                ExitCode::from(2)
+            } else {
+                ExitCode::SUCCESS
+            };
         }
     };
     match cli.command {
-        Command::Check { paths, format, deny } => check(paths, format, deny.is_some()),
+        Command::Check {
+            paths,
+            format,
+            deny,
+        } => check(paths, format, deny.is_some()),
         Command::Explain { rule, list, format } => explain(rule, list, format),
     }
 }
@@ -91,7 +101,11 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
             return ExitCode::from(2);
         }
     };
-    let paths = if paths.is_empty() { vec![cwd.clone()] } else { paths };
+    let paths = if paths.is_empty() {
+        vec![cwd.clone()]
+    } else {
+        paths
+    };
     let files = match collect::guard_files(&paths) {
         Ok(f) => f,
         Err(msg) => {
@@ -115,22 +129,42 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
     diagnostics = guardband_rules::analyse(&ws, &model, &config, diagnostics);
     ws.normalize_spans(&mut diagnostics);
     diagnostics.sort_by(|a, b| {
-        (ws.file(a.file).display.as_str(), a.span.start, a.span.end, a.rule)
-            .cmp(&(ws.file(b.file).display.as_str(), b.span.start, b.span.end, b.rule))
+        (
+            ws.file(a.file).display.as_str(),
+            a.span.start,
+            a.span.end,
+            a.rule,
+        )
+            .cmp(&(
+                ws.file(b.file).display.as_str(),
+                b.span.start,
+                b.span.end,
+                b.rule,
+            ))
     });
-    let files_checked = ws.files.iter().filter(|f| f.path.extension().is_some_and(|e| e == "guard")).count();
-    let errors = diagnostics.iter().filter(|d| d.severity == guardband_model::Severity::Error).count();
-    let warnings = diagnostics.iter().filter(|d| d.severity == guardband_model::Severity::Warning).count();
+    let files_checked = ws
+        .files
+        .iter()
+        .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
+        .count();
+    let errors = diagnostics
+        .iter()
+        .filter(|d| d.severity == guardband_model::Severity::Error)
+        .count();
+    let warnings = diagnostics
+        .iter()
+        .filter(|d| d.severity == guardband_model::Severity::Warning)
+        .count();
     let deny = deny_warnings || config.deny_warnings;
     let written = match format {
         Format::Human => render::human(&ws, &diagnostics, files_checked),
         Format::Json => render::json(&ws, &diagnostics, files_checked),
     };
-    if let Err(e) = written {
-        if e.kind() != std::io::ErrorKind::BrokenPipe {
-            eprintln!("guardband: cannot write output: {e}");
-            return ExitCode::from(2);
-        }
+    if let Err(e) = written
+        && e.kind() != std::io::ErrorKind::BrokenPipe
+    {
+        eprintln!("guardband: cannot write output: {e}");
+        return ExitCode::from(2);
     }
     if errors > 0 || (deny && warnings > 0) {
         ExitCode::from(1)
@@ -153,7 +187,10 @@ fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
                     })
                 })
                 .collect();
-            println!("{}", serde_json::to_string_pretty(&entries).unwrap_or_default());
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&entries).unwrap_or_default()
+            );
         } else {
             let width = rules.iter().map(|r| r.name.len()).max().unwrap_or(0);
             for r in rules {

@@ -5,14 +5,22 @@ use guardband_model::{Diagnostic, Severity, Workspace};
 use std::io::{IsTerminal, Write};
 
 fn plural(n: usize, word: &str) -> String {
-    if n == 1 { format!("1 {word}") } else { format!("{n} {word}s") }
+    if n == 1 {
+        format!("1 {word}")
+    } else {
+        format!("{n} {word}s")
+    }
 }
 
 /// The closing line, e.g. `2 errors, 1 warning in 3 files`.
 pub fn summary(diagnostics: &[Diagnostic], files: usize) -> String {
     let count = |s| diagnostics.iter().filter(|d| d.severity == s).count();
     let infos = count(Severity::Info);
-    let info = if infos > 0 { format!(", {}", plural(infos, "info")) } else { String::new() };
+    let info = if infos > 0 {
+        format!(", {}", plural(infos, "info"))
+    } else {
+        String::new()
+    };
     format!(
         "{}, {}{info} in {}",
         plural(count(Severity::Error), "error"),
@@ -36,7 +44,11 @@ pub fn human(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> std::i
             Severity::Info => (ReportKind::Advice, Color::Cyan),
         };
         let mut report = Report::build(kind, (name.clone(), d.span.clone()))
-            .with_config(Config::default().with_color(color).with_index_type(IndexType::Byte))
+            .with_config(
+                Config::default()
+                    .with_color(color)
+                    .with_index_type(IndexType::Byte),
+            )
             .with_code(d.rule)
             .with_message(&d.message);
         if d.labels.is_empty() {
@@ -66,7 +78,11 @@ fn position(ws: &Workspace, file: guardband_model::FileId, offset: usize) -> ser
     serde_json::json!({ "line": p.line + 1, "column": p.chars + 1 })
 }
 
-fn range(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<usize>) -> serde_json::Value {
+fn range(
+    ws: &Workspace,
+    file: guardband_model::FileId,
+    span: &std::ops::Range<usize>,
+) -> serde_json::Value {
     serde_json::json!({ "start": position(ws, file, span.start), "end": position(ws, file, span.end) })
 }
 

@@ -39,7 +39,11 @@ pub fn build(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Model {
 }
 
 fn header_span(block: &Block) -> guardband_syntax::Span {
-    let end = block.name.as_ref().map(|n| n.span.end).unwrap_or(block.keyword.span.end);
+    let end = block
+        .name
+        .as_ref()
+        .map(|n| n.span.end)
+        .unwrap_or(block.keyword.span.end);
     block.keyword.span.start..end
 }
 
@@ -54,21 +58,38 @@ fn add_block(
     let id = NodeId(model.nodes.len() as u32);
     if spec.named && block.name.is_none() {
         diagnostics.push(
-            Diagnostic::error("missing-name", file, block.keyword.span.clone(), format!("`{}` needs a name", spec.keyword))
-                .primary("name missing")
-                .help(format!("write `{} NAME {{ ... }}`", spec.keyword)),
+            Diagnostic::error(
+                "missing-name",
+                file,
+                block.keyword.span.clone(),
+                format!("`{}` needs a name", spec.keyword),
+            )
+            .primary("name missing")
+            .help(format!("write `{} NAME {{ ... }}`", spec.keyword)),
         );
     }
-    if !spec.named {
-        if let Some(name) = &block.name {
-            diagnostics.push(
-                Diagnostic::error("unknown-field", file, name.span.clone(), format!("`{}` takes no name", spec.keyword))
-                    .primary("remove this name")
-                    .help(format!("there is one `{}` per block; write `{} {{ ... }}`", spec.keyword, spec.keyword)),
-            );
-        }
+    if !spec.named
+        && let Some(name) = &block.name
+    {
+        diagnostics.push(
+            Diagnostic::error(
+                "unknown-field",
+                file,
+                name.span.clone(),
+                format!("`{}` takes no name", spec.keyword),
+            )
+            .primary("remove this name")
+            .help(format!(
+                "there is one `{}` per block; write `{} {{ ... }}`",
+                spec.keyword, spec.keyword
+            )),
+        );
     }
-    let key = block.name.as_ref().map(|n| n.text.clone()).unwrap_or_else(|| block.keyword.text.clone());
+    let key = block
+        .name
+        .as_ref()
+        .map(|n| n.text.clone())
+        .unwrap_or_else(|| block.keyword.text.clone());
     let path = match parent {
         Some(p) => format!("{}.{}", model.node(p).path, key),
         None => key,
@@ -88,14 +109,27 @@ fn add_block(
     });
     // Keys already taken in this block, with where, for duplicate checks.
     let mut taken: Vec<(String, guardband_syntax::Span)> = Vec::new();
-    let mut check_duplicate = |key: &str, span: &guardband_syntax::Span, what: &str, diagnostics: &mut Vec<Diagnostic>| -> bool {
+    let mut check_duplicate = |key: &str,
+                               span: &guardband_syntax::Span,
+                               what: &str,
+                               diagnostics: &mut Vec<Diagnostic>|
+     -> bool {
         if let Some((_, first)) = taken.iter().find(|(k, _)| k == key) {
-            let rule = if what == "field" { "duplicate-field" } else { "duplicate-name" };
+            let rule = if what == "field" {
+                "duplicate-field"
+            } else {
+                "duplicate-name"
+            };
             diagnostics.push(
-                Diagnostic::error(rule, file, span.clone(), format!("`{key}` is given twice in this block"))
-                    .primary("second definition")
-                    .label(file, first.clone(), "first defined here")
-                    .help("remove one of them; a spec states each thing once"),
+                Diagnostic::error(
+                    rule,
+                    file,
+                    span.clone(),
+                    format!("`{key}` is given twice in this block"),
+                )
+                .primary("second definition")
+                .label(file, first.clone(), "first defined here")
+                .help("remove one of them; a spec states each thing once"),
             );
             return true;
         }
@@ -113,13 +147,26 @@ fn add_block(
                 };
                 if field_spec.requirement == (f.relation == Relation::Assign) {
                     let msg = if field_spec.requirement {
-                        format!("`{} {}` states a bound; use `<=`, `>=`, `<` or `>`", f.keyword.text, name.unwrap_or(""))
+                        format!(
+                            "`{} {}` states a bound; use `<=`, `>=`, `<` or `>`",
+                            f.keyword.text,
+                            name.unwrap_or("")
+                        )
                     } else {
-                        format!("`{}` is set with `=`, not `{}`", f.keyword.text, f.relation.symbol())
+                        format!(
+                            "`{}` is set with `=`, not `{}`",
+                            f.keyword.text,
+                            f.relation.symbol()
+                        )
                     };
                     diagnostics.push(
-                        Diagnostic::error("syntax", file, f.keyword.span.start..f.value.span.start, msg)
-                            .primary("wrong relation"),
+                        Diagnostic::error(
+                            "syntax",
+                            file,
+                            f.keyword.span.start..f.value.span.start,
+                            msg,
+                        )
+                        .primary("wrong relation"),
                     );
                     continue;
                 }
@@ -177,7 +224,11 @@ fn unknown_field(file: FileId, spec: &BlockSpec, f: &guardband_syntax::Field) ->
         .collect();
     if !names.is_empty() {
         let given = f.name.as_ref().map(|n| n.text.as_str());
-        let span = f.name.as_ref().map(|n| n.span.clone()).unwrap_or(f.keyword.span.clone());
+        let span = f
+            .name
+            .as_ref()
+            .map(|n| n.span.clone())
+            .unwrap_or(f.keyword.span.clone());
         let mut d = Diagnostic::error(
             "unknown-field",
             file,
@@ -193,10 +244,19 @@ fn unknown_field(file: FileId, spec: &BlockSpec, f: &guardband_syntax::Field) ->
         }
         return d;
     }
-    if spec.children.iter().any(|k| schema::block_spec(*k).keyword == keyword) {
-        return Diagnostic::error("unknown-field", file, f.keyword.span.clone(), format!("`{keyword}` is a block, not a field"))
-            .primary("written as a field")
-            .help(format!("write `{keyword} NAME {{ ... }}`"));
+    if spec
+        .children
+        .iter()
+        .any(|k| schema::block_spec(*k).keyword == keyword)
+    {
+        return Diagnostic::error(
+            "unknown-field",
+            file,
+            f.keyword.span.clone(),
+            format!("`{keyword}` is a block, not a field"),
+        )
+        .primary("written as a field")
+        .help(format!("write `{keyword} NAME {{ ... }}`"));
     }
     let mut d = Diagnostic::error(
         "unknown-field",
@@ -237,12 +297,21 @@ fn report_duplicate_items(ws: &Workspace, model: &Model, diagnostics: &mut Vec<D
             if a.name.is_none() || a.file != file.id {
                 continue;
             }
-            if let Some(b) = visible[..i].iter().map(|b| model.node(*b)).find(|b| b.key() == a.key()) {
+            if let Some(b) = visible[..i]
+                .iter()
+                .map(|b| model.node(*b))
+                .find(|b| b.key() == a.key())
+            {
                 diagnostics.push(
-                    Diagnostic::error("duplicate-name", a.file, a.header_span.clone(), format!("`{}` is defined twice", a.key()))
-                        .primary("second definition")
-                        .label(b.file, b.header_span.clone(), "first defined here")
-                        .help("give each regulator and process its own name"),
+                    Diagnostic::error(
+                        "duplicate-name",
+                        a.file,
+                        a.header_span.clone(),
+                        format!("`{}` is defined twice", a.key()),
+                    )
+                    .primary("second definition")
+                    .label(b.file, b.header_span.clone(), "first defined here")
+                    .help("give each regulator and process its own name"),
                 );
             }
         }

@@ -15,7 +15,13 @@ pub fn visible_items(ws: &Workspace, model: &Model, file: FileId) -> Vec<NodeId>
     files.extend(ws.file(file).imports.iter().map(|(f, _)| *f));
     files
         .iter()
-        .flat_map(|f| model.items.iter().copied().filter(move |i| model.node(*i).file == *f))
+        .flat_map(|f| {
+            model
+                .items
+                .iter()
+                .copied()
+                .filter(move |i| model.node(*i).file == *f)
+        })
         .collect()
 }
 
@@ -43,8 +49,18 @@ struct Evaluator<'a> {
 
 /// Evaluates every field of every node in place, reporting problems.
 pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnostic>) {
-    let states = model.nodes.iter().map(|n| vec![State::Pending; n.fields.len()]).collect();
-    let mut ev = Evaluator { ws, model, states, stack: Vec::new(), diagnostics };
+    let states = model
+        .nodes
+        .iter()
+        .map(|n| vec![State::Pending; n.fields.len()])
+        .collect();
+    let mut ev = Evaluator {
+        ws,
+        model,
+        states,
+        stack: Vec::new(),
+        diagnostics,
+    };
     for n in 0..ev.model.nodes.len() {
         for i in 0..ev.model.nodes[n].fields.len() {
             ev.field(NodeId(n as u32), i);
@@ -83,7 +99,12 @@ impl<'a> Evaluator<'a> {
     }
 
     fn text(&self, file: FileId, span: &Span) -> String {
-        self.ws.file(file).text.get(span.clone()).unwrap_or("").to_string()
+        self.ws
+            .file(file)
+            .text
+            .get(span.clone())
+            .unwrap_or("")
+            .to_string()
     }
 
     fn push(&mut self, d: Diagnostic) {
@@ -128,7 +149,11 @@ impl<'a> Evaluator<'a> {
     }
 
     fn report_cycle(&mut self, node: NodeId, index: usize) {
-        let start = self.stack.iter().position(|e| *e == (node, index)).unwrap_or(0);
+        let start = self
+            .stack
+            .iter()
+            .position(|e| *e == (node, index))
+            .unwrap_or(0);
         let chain: Vec<(NodeId, usize)> = self.stack[start..].to_vec();
         let mut names: Vec<String> = chain.iter().map(|(n, i)| self.field_path(*n, *i)).collect();
         names.push(self.field_path(node, index));
@@ -143,7 +168,11 @@ impl<'a> Evaluator<'a> {
         .primary("this field is part of the cycle");
         for (n, i) in chain.iter().skip(1) {
             let f = &self.model.node(*n).fields[*i];
-            d = d.label(self.file_of(*n), f.key_span.clone(), "which depends on this");
+            d = d.label(
+                self.file_of(*n),
+                f.key_span.clone(),
+                "which depends on this",
+            );
         }
         self.push(d.help("give one of these fields a value that does not refer back"));
         for (n, i) in chain {
@@ -168,8 +197,13 @@ impl<'a> Evaluator<'a> {
                 ExprKind::Error => None,
                 _ => {
                     self.push(
-                        Diagnostic::error("invalid-value", file, expr.span.clone(), "expected `true` or `false`")
-                            .primary("not a yes/no value"),
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "expected `true` or `false`",
+                        )
+                        .primary("not a yes/no value"),
                     );
                     None
                 }
@@ -179,8 +213,13 @@ impl<'a> Evaluator<'a> {
                 ExprKind::Error => None,
                 _ => {
                     self.push(
-                        Diagnostic::error("invalid-value", file, expr.span.clone(), "expected a quoted string")
-                            .primary("write text in double quotes"),
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "expected a quoted string",
+                        )
+                        .primary("write text in double quotes"),
                     );
                     None
                 }
@@ -199,7 +238,10 @@ impl<'a> Evaluator<'a> {
                             "invalid-value",
                             file,
                             expr.span.clone(),
-                            format!("`{found}` is not one of {}", ty.describe().trim_start_matches("one of ")),
+                            format!(
+                                "`{found}` is not one of {}",
+                                ty.describe().trim_start_matches("one of ")
+                            ),
                         )
                         .primary("unknown choice");
                         if let Some(s) = did_you_mean(&found, options.iter().copied()) {
@@ -213,7 +255,9 @@ impl<'a> Evaluator<'a> {
             FieldType::Ref(kinds) => {
                 let path = self.path_of(file, expr)?;
                 match self.resolve(node, &path, true)? {
-                    Target::Node(target) if kinds.contains(&self.model.node(target).kind) => Some(FieldValue::Ref(target)),
+                    Target::Node(target) if kinds.contains(&self.model.node(target).kind) => {
+                        Some(FieldValue::Ref(target))
+                    }
                     _ => {
                         self.push(
                             Diagnostic::error(
@@ -241,13 +285,19 @@ impl<'a> Evaluator<'a> {
                             _ => &[],
                         };
                         if terminals.contains(&terminal.as_str()) {
-                            return Some(FieldValue::Node { node: n, terminal: Some(terminal.clone()) });
+                            return Some(FieldValue::Node {
+                                node: n,
+                                terminal: Some(terminal.clone()),
+                            });
                         }
                         let mut d = Diagnostic::error(
                             "unknown-name",
                             file,
                             last[0].span.clone(),
-                            format!("`{terminal}` is not a terminal of `{}`", self.model.node(n).key()),
+                            format!(
+                                "`{terminal}` is not a terminal of `{}`",
+                                self.model.node(n).key()
+                            ),
                         )
                         .primary("unknown terminal");
                         if !terminals.is_empty() {
@@ -259,12 +309,20 @@ impl<'a> Evaluator<'a> {
                 }
                 match self.resolve(node, &path, true)? {
                     Target::Node(n) if self.model.node(n).kind == BlockKind::Pin => {
-                        Some(FieldValue::Node { node: n, terminal: None })
+                        Some(FieldValue::Node {
+                            node: n,
+                            terminal: None,
+                        })
                     }
                     _ => {
                         self.push(
-                            Diagnostic::error("invalid-value", file, expr.span.clone(), format!("expected {}", ty.describe()))
-                                .primary("not a circuit node"),
+                            Diagnostic::error(
+                                "invalid-value",
+                                file,
+                                expr.span.clone(),
+                                format!("expected {}", ty.describe()),
+                            )
+                            .primary("not a circuit node"),
                         );
                         None
                     }
@@ -288,14 +346,24 @@ impl<'a> Evaluator<'a> {
     }
 
     /// Checks a value against the kinds a field accepts; fixes up kelvin literals.
-    fn fit(&mut self, file: FileId, expr: &Expr, mut v: Value, kinds: &[QuantityKind]) -> Option<Value> {
+    fn fit(
+        &mut self,
+        file: FileId,
+        expr: &Expr,
+        mut v: Value,
+        kinds: &[QuantityKind],
+    ) -> Option<Value> {
         if let Some(k) = kinds.iter().find(|k| v.kind.fits(**k)) {
             if v.kind.is_temperature() && v.kind.temp == TempSense::Either {
                 v.kind.temp = k.temp;
             }
             return Some(v);
         }
-        let expected = kinds.iter().map(|k| k.describe()).collect::<Vec<_>>().join(" or ");
+        let expected = kinds
+            .iter()
+            .map(|k| k.describe())
+            .collect::<Vec<_>>()
+            .join(" or ");
         let mut d = Diagnostic::error(
             "unit-mismatch",
             file,
@@ -305,7 +373,9 @@ impl<'a> Evaluator<'a> {
         .primary(format!("this is {}", v.kind.describe()));
         d = if kinds[0].is_temperature() && v.kind.is_temperature() {
             if kinds[0].temp == TempSense::Difference {
-                d.help("a temperature rise or difference is written in K (a rise of 10 °C is `10 K`)")
+                d.help(
+                    "a temperature rise or difference is written in K (a rise of 10 °C is `10 K`)",
+                )
             } else {
                 d.help("an absolute temperature is written in °C or K, not as a difference")
             }
@@ -328,22 +398,38 @@ impl<'a> Evaluator<'a> {
         id
     }
 
-    fn value_error(&mut self, file: FileId, span: Span, err: ValueError, parts: &[(&Expr, &Value)]) {
+    fn value_error(
+        &mut self,
+        file: FileId,
+        span: Span,
+        err: ValueError,
+        parts: &[(&Expr, &Value)],
+    ) {
         let rule = match err {
-            ValueError::DivisorIncludesZero | ValueError::BadSqrt(_) | ValueError::NotFinite => "invalid-value",
+            ValueError::DivisorIncludesZero | ValueError::BadSqrt(_) | ValueError::NotFinite => {
+                "invalid-value"
+            }
             _ => "unit-mismatch",
         };
         let mut d = Diagnostic::error(rule, file, span, err.to_string());
         match err {
             ValueError::DivisorIncludesZero => {
                 if let Some((e, v)) = parts.get(1) {
-                    d = d.label(file, e.span.clone(), format!("this ranges over {} .. {} and includes zero", v.lo, v.hi));
+                    d = d.label(
+                        file,
+                        e.span.clone(),
+                        format!("this ranges over {} .. {} and includes zero", v.lo, v.hi),
+                    );
                 }
                 d = d.help("state the divisor so that its whole range is on one side of zero");
             }
             _ => {
                 for (e, v) in parts {
-                    d = d.label(file, e.span.clone(), format!("this is {}", v.kind.describe()));
+                    d = d.label(
+                        file,
+                        e.span.clone(),
+                        format!("this is {}", v.kind.describe()),
+                    );
                 }
             }
         }
@@ -358,15 +444,22 @@ impl<'a> Evaluator<'a> {
             ExprKind::Number { value, unit } => self.number(file, expr, *value, unit.as_ref()),
             ExprKind::Bool(_) | ExprKind::Str(_) => {
                 self.push(
-                    Diagnostic::error("unit-mismatch", file, expr.span.clone(), "expected a quantity such as `150 mA`")
-                        .primary("not a number"),
+                    Diagnostic::error(
+                        "unit-mismatch",
+                        file,
+                        expr.span.clone(),
+                        "expected a quantity such as `150 mA`",
+                    )
+                    .primary("not a number"),
                 );
                 None
             }
             ExprKind::Paren(inner) => self.quantity(node, inner, key),
             ExprKind::Neg(inner) => {
                 let v = self.quantity(node, inner, key)?;
-                v.neg().map_err(|e| self.value_error(file, expr.span.clone(), e, &[(inner, &v)])).ok()
+                v.neg()
+                    .map_err(|e| self.value_error(file, expr.span.clone(), e, &[(inner, &v)]))
+                    .ok()
             }
             ExprKind::Binary(op, a, b) => {
                 let va = self.quantity(node, a, key)?;
@@ -377,38 +470,68 @@ impl<'a> Evaluator<'a> {
                     BinaryOp::Mul => va.mul(&vb),
                     BinaryOp::Div => va.div(&vb),
                 };
-                r.map_err(|e| self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)])).ok()
+                r.map_err(|e| self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)]))
+                    .ok()
             }
             ExprKind::Range(a, b) => {
                 let lo = self.quantity(node, a, key)?;
                 let hi = self.quantity(node, b, key)?;
                 if !lo.kind.fits(hi.kind) {
-                    let err = ValueError::Mismatch { left: lo.kind, right: hi.kind };
+                    let err = ValueError::Mismatch {
+                        left: lo.kind,
+                        right: hi.kind,
+                    };
                     self.value_error(file, expr.span.clone(), err, &[(a, &lo), (b, &hi)]);
                     return None;
                 }
                 if lo.nom > hi.nom {
                     self.push(
-                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this range runs backwards")
-                            .primary("the low end is above the high end")
-                            .help("write the smaller value first: `low .. high`"),
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "this range runs backwards",
+                        )
+                        .primary("the low end is above the high end")
+                        .help("write the smaller value first: `low .. high`"),
                     );
                     return None;
                 }
-                let kind = if lo.kind.temp == TempSense::Either { hi.kind } else { lo.kind };
+                let kind = if lo.kind.temp == TempSense::Either {
+                    hi.kind
+                } else {
+                    lo.kind
+                };
                 let id = self.new_source(node, key, file, expr.span.clone());
                 let mut v = Value::range(kind, lo.lo, hi.hi, id);
                 v.unit = lo.unit.clone().or(hi.unit.clone());
                 Some(v)
             }
-            ExprKind::Tolerance { base, plus, minus, symmetric } => {
+            ExprKind::Tolerance {
+                base,
+                plus,
+                minus,
+                symmetric,
+            } => {
                 let up_v = self.quantity(node, plus, key)?;
-                let down_v = if *symmetric { up_v.clone() } else { self.quantity(node, minus, key)? };
+                let down_v = if *symmetric {
+                    up_v.clone()
+                } else {
+                    self.quantity(node, minus, key)?
+                };
                 let mag = |v: &Value| v.nom.abs().max(v.lo.abs()).max(v.hi.abs());
                 let (up, down) = (mag(&up_v), mag(&down_v));
                 if !up_v.kind.fits(down_v.kind) {
-                    let err = ValueError::Mismatch { left: up_v.kind, right: down_v.kind };
-                    self.value_error(file, expr.span.clone(), err, &[(plus, &up_v), (minus, &down_v)]);
+                    let err = ValueError::Mismatch {
+                        left: up_v.kind,
+                        right: down_v.kind,
+                    };
+                    self.value_error(
+                        file,
+                        expr.span.clone(),
+                        err,
+                        &[(plus, &up_v), (minus, &down_v)],
+                    );
                     return None;
                 }
                 let tol_span = match base {
@@ -418,18 +541,27 @@ impl<'a> Evaluator<'a> {
                 match base {
                     None => {
                         if up_v.kind.is_temperature() && up_v.kind.temp == TempSense::Absolute {
-                            let err = ValueError::AbsoluteTemperature("a tolerance cannot be an absolute temperature; use K");
+                            let err = ValueError::AbsoluteTemperature(
+                                "a tolerance cannot be an absolute temperature; use K",
+                            );
                             self.value_error(file, expr.span.clone(), err, &[(plus, &up_v)]);
                             return None;
                         }
                         let id = self.new_source(node, key, file, tol_span);
-                        let kind = QuantityKind { temp: TempSense::Difference, ..up_v.kind };
+                        let kind = QuantityKind {
+                            temp: TempSense::Difference,
+                            ..up_v.kind
+                        };
                         Some(Value {
                             kind,
                             nom: 0.0,
                             lo: -down,
                             hi: up,
-                            terms: vec![crate::value::Term { source: id, low: -down, high: up }],
+                            terms: vec![crate::value::Term {
+                                source: id,
+                                low: -down,
+                                high: up,
+                            }],
                             unit: up_v.unit.clone(),
                         })
                     }
@@ -438,7 +570,9 @@ impl<'a> Evaluator<'a> {
                         let id = self.new_source(node, key, file, tol_span.clone());
                         base_v
                             .with_tolerance(up_v.kind, up, down, id)
-                            .map_err(|e| self.value_error(file, tol_span, e, &[(b, &base_v), (plus, &up_v)]))
+                            .map_err(|e| {
+                                self.value_error(file, tol_span, e, &[(b, &base_v), (plus, &up_v)])
+                            })
                             .ok()
                     }
                 }
@@ -468,16 +602,28 @@ impl<'a> Evaluator<'a> {
                 }
                 Target::Node(n) => {
                     let target = self.model.node(n);
-                    let fields: Vec<String> = target.fields.iter().take(3).map(|f| format!("`{}.{}`", target.key(), f.key)).collect();
+                    let fields: Vec<String> = target
+                        .fields
+                        .iter()
+                        .take(3)
+                        .map(|f| format!("`{}.{}`", target.key(), f.key))
+                        .collect();
                     let mut d = Diagnostic::error(
                         "invalid-value",
                         file,
                         expr.span.clone(),
-                        format!("`{}` is a {} block, not a value", target.key(), target.keyword),
+                        format!(
+                            "`{}` is a {} block, not a value",
+                            target.key(),
+                            target.keyword
+                        ),
                     )
                     .primary("names a block");
                     if !fields.is_empty() {
-                        d = d.help(format!("name one of its fields, e.g. {}", fields.join(", ")));
+                        d = d.help(format!(
+                            "name one of its fields, e.g. {}",
+                            fields.join(", ")
+                        ));
                     }
                     self.push(d);
                     None
@@ -486,11 +632,22 @@ impl<'a> Evaluator<'a> {
         }
     }
 
-    fn number(&mut self, file: FileId, expr: &Expr, value: f64, unit: Option<&Ident>) -> Option<Value> {
+    fn number(
+        &mut self,
+        file: FileId,
+        expr: &Expr,
+        value: f64,
+        unit: Option<&Ident>,
+    ) -> Option<Value> {
         if !value.is_finite() {
             self.push(
-                Diagnostic::error("invalid-value", file, expr.span.clone(), "this number is too large")
-                    .primary("not a finite number"),
+                Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    expr.span.clone(),
+                    "this number is too large",
+                )
+                .primary("not a finite number"),
             );
             return None;
         }
@@ -502,15 +659,25 @@ impl<'a> Evaluator<'a> {
                 let si = u.to_si(value);
                 if !si.is_finite() {
                     self.push(
-                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this value is too large")
-                            .primary("not a finite number"),
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "this value is too large",
+                        )
+                        .primary("not a finite number"),
                     );
                     return None;
                 }
                 if u.kind.temp == TempSense::Absolute && si < 0.0 {
                     self.push(
-                        Diagnostic::error("invalid-value", file, expr.span.clone(), "this temperature is below absolute zero")
-                            .primary("below -273.15 °C"),
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "this temperature is below absolute zero",
+                        )
+                        .primary("below -273.15 °C"),
                     );
                     return None;
                 }
@@ -519,10 +686,14 @@ impl<'a> Evaluator<'a> {
                 Some(v)
             }
             Err(err) => {
-                let mut d = Diagnostic::error("unknown-unit", file, unit.span.clone(), err.to_string()).primary("not a unit");
+                let mut d =
+                    Diagnostic::error("unknown-unit", file, unit.span.clone(), err.to_string())
+                        .primary("not a unit");
                 if let UnitError::Unknown { suggestions, .. } = &err {
                     if let Some(s) = suggestions.first() {
-                        d = d.help(format!("did you mean `{s}`? The language reference lists every unit"));
+                        d = d.help(format!(
+                            "did you mean `{s}`? The language reference lists every unit"
+                        ));
                     } else {
                         d = d.help("the language reference lists every unit");
                     }
@@ -533,15 +704,27 @@ impl<'a> Evaluator<'a> {
         }
     }
 
-    fn call(&mut self, node: NodeId, expr: &Expr, name: &Ident, args: &[Expr], key: &str) -> Option<Value> {
+    fn call(
+        &mut self,
+        node: NodeId,
+        expr: &Expr,
+        name: &Ident,
+        args: &[Expr],
+        key: &str,
+    ) -> Option<Value> {
         let file = self.file_of(node);
         let arity = match name.text.as_str() {
             "min" | "max" => 2..=16,
             "abs" | "sqrt" => 1..=1,
             _ => {
-                let mut d = Diagnostic::error("unknown-name", file, name.span.clone(), format!("unknown function `{}`", name.text))
-                    .primary("not a function")
-                    .help("functions: min, max, abs, sqrt");
+                let mut d = Diagnostic::error(
+                    "unknown-name",
+                    file,
+                    name.span.clone(),
+                    format!("unknown function `{}`", name.text),
+                )
+                .primary("not a function")
+                .help("functions: min, max, abs, sqrt");
                 if let Some(s) = did_you_mean(&name.text, ["min", "max", "abs", "sqrt"]) {
                     d = d.help(format!("did you mean `{s}`?"));
                 }
@@ -555,7 +738,16 @@ impl<'a> Evaluator<'a> {
                     "invalid-value",
                     file,
                     expr.span.clone(),
-                    format!("`{}` takes {} argument(s), found {}", name.text, if arity.start() == arity.end() { "1".to_string() } else { "2 or more".to_string() }, args.len()),
+                    format!(
+                        "`{}` takes {} argument(s), found {}",
+                        name.text,
+                        if arity.start() == arity.end() {
+                            "1".to_string()
+                        } else {
+                            "2 or more".to_string()
+                        },
+                        args.len()
+                    ),
                 )
                 .primary("wrong number of arguments"),
             );
@@ -575,7 +767,8 @@ impl<'a> Evaluator<'a> {
                     match next {
                         Ok(n) => acc = n,
                         Err(e) => {
-                            let parts: Vec<(&Expr, &Value)> = args.iter().zip(values.iter()).collect();
+                            let parts: Vec<(&Expr, &Value)> =
+                                args.iter().zip(values.iter()).collect();
                             self.value_error(file, expr.span.clone(), e, &parts);
                             return None;
                         }
@@ -602,21 +795,28 @@ impl<'a> Evaluator<'a> {
                 let file = self.file_of(from);
                 let seg = &path[bad];
                 let what = if want_block { "block" } else { "name" };
-                let mut d = Diagnostic::error("unknown-name", file, seg.span.clone(), format!("unknown {what} `{}`", seg.text))
-                    .primary("not found");
+                let mut d = Diagnostic::error(
+                    "unknown-name",
+                    file,
+                    seg.span.clone(),
+                    format!("unknown {what} `{}`", seg.text),
+                )
+                .primary("not found");
                 if let Some(s) = did_you_mean(&seg.text, candidates.iter().map(String::as_str)) {
                     d = d.help(format!("did you mean `{s}`?"));
-                } else if bad == 0 {
-                    if let Some(other) = self
+                } else if bad == 0
+                    && let Some(other) = self
                         .model
                         .items
                         .iter()
                         .map(|i| self.model.node(*i))
                         .find(|n| n.key() == seg.text)
-                    {
-                        let other_file = &self.ws.file(other.file).display;
-                        d = d.help(format!("`{}` is defined in {other_file}; import it with `use \"...\"`", seg.text));
-                    }
+                {
+                    let other_file = &self.ws.file(other.file).display;
+                    d = d.help(format!(
+                        "`{}` is defined in {other_file}; import it with `use \"...\"`",
+                        seg.text
+                    ));
                 }
                 self.push(d);
                 None
@@ -627,7 +827,12 @@ impl<'a> Evaluator<'a> {
     /// Looks a path up in each enclosing block, then among visible items.
     /// On failure returns the index of the segment that failed and the names
     /// that would have been valid there.
-    fn lookup_scopes(&self, from: NodeId, path: &[Ident], want_block: bool) -> Result<Target, (usize, Vec<String>)> {
+    fn lookup_scopes(
+        &self,
+        from: NodeId,
+        path: &[Ident],
+        want_block: bool,
+    ) -> Result<Target, (usize, Vec<String>)> {
         let (path, corner) = match path.split_last() {
             Some((last, rest)) if !rest.is_empty() => match last.text.as_str() {
                 "min" => (rest, Some(Corner::Min)),
@@ -642,13 +847,22 @@ impl<'a> Evaluator<'a> {
         while let Some(s) = scope {
             let node = self.model.node(s);
             let field_hit = !want_block && node.fields.iter().any(|f| f.key == path[0].text);
-            if field_hit || node.children.iter().any(|c| self.model.node(*c).key() == path[0].text) {
+            if field_hit
+                || node
+                    .children
+                    .iter()
+                    .any(|c| self.model.node(*c).key() == path[0].text)
+            {
                 return self.descend(s, path, corner, 0);
             }
             if !want_block {
                 candidates.extend(node.fields.iter().map(|f| f.key.clone()));
             }
-            candidates.extend(node.children.iter().map(|c| self.model.node(*c).key().to_string()));
+            candidates.extend(
+                node.children
+                    .iter()
+                    .map(|c| self.model.node(*c).key().to_string()),
+            );
             scope = node.parent;
         }
         let file = self.model.node(from).file;
@@ -658,7 +872,7 @@ impl<'a> Evaluator<'a> {
                 if path.len() == 1 {
                     return Ok(Target::Node(item));
                 }
-                return self.descend(item, &path[1..], corner, 1).map_err(|(i, c)| (i, c));
+                return self.descend(item, &path[1..], corner, 1);
             }
             candidates.push(n.key().to_string());
         }
@@ -666,24 +880,48 @@ impl<'a> Evaluator<'a> {
     }
 
     /// Follows `path` downward from `node`; `offset` is the index of path[0] in the full path.
-    fn descend(&self, node: NodeId, path: &[Ident], corner: Option<Corner>, offset: usize) -> Result<Target, (usize, Vec<String>)> {
+    fn descend(
+        &self,
+        node: NodeId,
+        path: &[Ident],
+        corner: Option<Corner>,
+        offset: usize,
+    ) -> Result<Target, (usize, Vec<String>)> {
         let n = self.model.node(node);
         let seg = &path[0];
         let child_first = path.len() > 1 || n.fields.iter().all(|f| f.key != seg.text);
-        if let Some(i) = n.fields.iter().position(|f| f.key == seg.text).filter(|_| !child_first) {
+        if let Some(i) = n
+            .fields
+            .iter()
+            .position(|f| f.key == seg.text)
+            .filter(|_| !child_first)
+        {
             if path.len() > 1 {
                 return Err((offset + 1, vec!["min".into(), "nom".into(), "max".into()]));
             }
             return Ok(Target::Field(node, i, corner));
         }
-        if let Some(c) = n.children.iter().copied().find(|c| self.model.node(*c).key() == seg.text) {
+        if let Some(c) = n
+            .children
+            .iter()
+            .copied()
+            .find(|c| self.model.node(*c).key() == seg.text)
+        {
             if path.len() == 1 {
-                return if corner.is_some() { Err((offset + 1, Vec::new())) } else { Ok(Target::Node(c)) };
+                return if corner.is_some() {
+                    Err((offset + 1, Vec::new()))
+                } else {
+                    Ok(Target::Node(c))
+                };
             }
             return self.descend(c, &path[1..], corner, offset + 1);
         }
         let mut names: Vec<String> = n.fields.iter().map(|f| f.key.clone()).collect();
-        names.extend(n.children.iter().map(|c| self.model.node(*c).key().to_string()));
+        names.extend(
+            n.children
+                .iter()
+                .map(|c| self.model.node(*c).key().to_string()),
+        );
         Err((offset, names))
     }
 }

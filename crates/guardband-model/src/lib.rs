@@ -25,7 +25,8 @@ use guardband_syntax::SyntaxError;
 
 /// Turns a syntax error into a diagnostic of rule `syntax`.
 pub fn syntax_diagnostic(file: FileId, err: &SyntaxError) -> Diagnostic {
-    Diagnostic::error("syntax", file, err.span.clone(), err.message.clone()).primary(err.label.clone())
+    Diagnostic::error("syntax", file, err.span.clone(), err.message.clone())
+        .primary(err.label.clone())
 }
 
 /// Builds and evaluates the model of a loaded workspace.
@@ -35,7 +36,12 @@ pub fn syntax_diagnostic(file: FileId, err: &SyntaxError) -> Diagnostic {
 pub fn check(ws: &Workspace) -> (Model, Vec<Diagnostic>) {
     let mut diagnostics = Vec::new();
     for file in &ws.files {
-        diagnostics.extend(file.parse.errors.iter().map(|e| syntax_diagnostic(file.id, e)));
+        diagnostics.extend(
+            file.parse
+                .errors
+                .iter()
+                .map(|e| syntax_diagnostic(file.id, e)),
+        );
     }
     let mut model = build::build(ws, &mut diagnostics);
     eval::evaluate(ws, &mut model, &mut diagnostics);

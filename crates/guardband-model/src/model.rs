@@ -1,9 +1,9 @@
 //! The model: every block of the workspace as a node with checked fields,
 //! plus the stated tolerances. Built by [`crate::check`].
 
+use crate::FileId;
 use crate::schema::{BlockKind, FieldSpec};
 use crate::value::{ToleranceSource, Value};
-use crate::FileId;
 use guardband_syntax::{Expr, Relation, Span};
 
 /// Index of a node in [`Model::nodes`].
@@ -19,7 +19,10 @@ pub enum FieldValue {
     /// A reference to another block.
     Ref(NodeId),
     /// A circuit node: a block, and a terminal of it (`pass.gate`) when named.
-    Node { node: NodeId, terminal: Option<String> },
+    Node {
+        node: NodeId,
+        terminal: Option<String>,
+    },
     Text(String),
 }
 
@@ -138,7 +141,10 @@ impl Model {
 
     /// Top-level items of one kind.
     pub fn items_of(&self, kind: BlockKind) -> impl Iterator<Item = &Node> {
-        self.items.iter().map(|id| self.node(*id)).filter(move |n| n.kind == kind)
+        self.items
+            .iter()
+            .map(|id| self.node(*id))
+            .filter(move |n| n.kind == kind)
     }
 
     /// All regulators.
@@ -147,8 +153,15 @@ impl Model {
     }
 
     /// Children of a node of one kind.
-    pub fn children<'a>(&'a self, node: &'a Node, kind: BlockKind) -> impl Iterator<Item = &'a Node> + 'a {
-        node.children.iter().map(|id| self.node(*id)).filter(move |n| n.kind == kind)
+    pub fn children<'a>(
+        &'a self,
+        node: &'a Node,
+        kind: BlockKind,
+    ) -> impl Iterator<Item = &'a Node> + 'a {
+        node.children
+            .iter()
+            .map(|id| self.node(*id))
+            .filter(move |n| n.kind == kind)
     }
 
     /// The first child of a node of one kind.

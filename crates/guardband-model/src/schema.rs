@@ -76,10 +76,28 @@ const LENGTH: FieldType = q(Dimension::LENGTH);
 const TIME: FieldType = q(Dimension::TIME);
 
 const fn f(keyword: &'static str, ty: FieldType, doc: &'static str) -> FieldSpec {
-    FieldSpec { keyword, name: None, ty, requirement: false, doc }
+    FieldSpec {
+        keyword,
+        name: None,
+        ty,
+        requirement: false,
+        doc,
+    }
 }
-const fn named(keyword: &'static str, name: &'static str, ty: FieldType, requirement: bool, doc: &'static str) -> FieldSpec {
-    FieldSpec { keyword, name: Some(name), ty, requirement, doc }
+const fn named(
+    keyword: &'static str,
+    name: &'static str,
+    ty: FieldType,
+    requirement: bool,
+    doc: &'static str,
+) -> FieldSpec {
+    FieldSpec {
+        keyword,
+        name: Some(name),
+        ty,
+        requirement,
+        doc,
+    }
 }
 const DESCRIPTION: FieldSpec = f("description", FieldType::Text, "free text shown in hovers");
 
@@ -108,13 +126,37 @@ pub const BLOCKS: &[BlockSpec] = &[
         ],
         fields: &[
             f("supply", VOLTAGE, "input supply range"),
-            f("output", VOLTAGE, "regulated output voltage and its tolerance"),
-            f("load", CURRENT, "load current range; the rated load is its maximum"),
+            f(
+                "output",
+                VOLTAGE,
+                "regulated output voltage and its tolerance",
+            ),
+            f(
+                "load",
+                CURRENT,
+                "load current range; the rated load is its maximum",
+            ),
             f("ambient", ABS_TEMP, "ambient temperature range"),
-            f("junction_max", ABS_TEMP, "highest allowed junction temperature"),
-            f("theta_ja", q(Dimension::THERMAL_RESISTANCE), "junction-to-ambient thermal resistance"),
-            f("margin", RATIO, "required margin of the limit's low edge above rated load (overrides guardband.toml)"),
-            f("lifetime", TIME, "target lifetime for conductor ratings (overrides guardband.toml)"),
+            f(
+                "junction_max",
+                ABS_TEMP,
+                "highest allowed junction temperature",
+            ),
+            f(
+                "theta_ja",
+                q(Dimension::THERMAL_RESISTANCE),
+                "junction-to-ambient thermal resistance",
+            ),
+            f(
+                "margin",
+                RATIO,
+                "required margin of the limit's low edge above rated load (overrides guardband.toml)",
+            ),
+            f(
+                "lifetime",
+                TIME,
+                "target lifetime for conductor ratings (overrides guardband.toml)",
+            ),
             DESCRIPTION,
         ],
     },
@@ -125,7 +167,13 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "process data shared by many blocks",
         children: &[BlockKind::Metal],
         fields: &[
-            named("spread", "*", RATIO, false, "a typical spread, e.g. `spread resistor = ± 18 %`"),
+            named(
+                "spread",
+                "*",
+                RATIO,
+                false,
+                "a typical spread, e.g. `spread resistor = ± 18 %`",
+            ),
             DESCRIPTION,
         ],
     },
@@ -137,14 +185,46 @@ pub const BLOCKS: &[BlockSpec] = &[
         children: &[],
         fields: &[
             f("thickness", LENGTH, "layer thickness"),
-            f("current_density", q(Dimension::CURRENT_DENSITY), "electromigration current-density limit at the reference temperature"),
-            f("current_per_width", q(Dimension::CURRENT_PER_LENGTH), "electromigration limit per unit width (instead of current_density)"),
-            f("reference_temperature", ABS_TEMP, "temperature at which the limit is stated"),
-            f("reference_lifetime", TIME, "lifetime for which the limit is stated"),
-            f("activation_energy", q(Dimension::ENERGY), "Black's-equation activation energy"),
-            f("current_exponent", RATIO, "Black's-equation current-density exponent"),
-            f("resistivity", q(Dimension::RESISTIVITY), "resistivity at the reference temperature"),
-            f("temperature_coefficient", q(Dimension::PER_TEMPERATURE), "resistivity temperature coefficient"),
+            f(
+                "current_density",
+                q(Dimension::CURRENT_DENSITY),
+                "electromigration current-density limit at the reference temperature",
+            ),
+            f(
+                "current_per_width",
+                q(Dimension::CURRENT_PER_LENGTH),
+                "electromigration limit per unit width (instead of current_density)",
+            ),
+            f(
+                "reference_temperature",
+                ABS_TEMP,
+                "temperature at which the limit is stated",
+            ),
+            f(
+                "reference_lifetime",
+                TIME,
+                "lifetime for which the limit is stated",
+            ),
+            f(
+                "activation_energy",
+                q(Dimension::ENERGY),
+                "Black's-equation activation energy",
+            ),
+            f(
+                "current_exponent",
+                RATIO,
+                "Black's-equation current-density exponent",
+            ),
+            f(
+                "resistivity",
+                q(Dimension::RESISTIVITY),
+                "resistivity at the reference temperature",
+            ),
+            f(
+                "temperature_coefficient",
+                q(Dimension::PER_TEMPERATURE),
+                "resistivity temperature coefficient",
+            ),
             DESCRIPTION,
         ],
     },
@@ -155,8 +235,16 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "a pin of the block",
         children: &[],
         fields: &[
-            f("off_chip", FieldType::Bool, "whether the pin leaves the die (and can be touched)"),
-            f("capacitance", q(Dimension::CAPACITANCE), "capacitance attached to the pin"),
+            f(
+                "off_chip",
+                FieldType::Bool,
+                "whether the pin leaves the die (and can be touched)",
+            ),
+            f(
+                "capacitance",
+                q(Dimension::CAPACITANCE),
+                "capacitance attached to the pin",
+            ),
             DESCRIPTION,
         ],
     },
@@ -167,8 +255,16 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "the pass device; its terminals are `gate`, `source` and `drain`",
         children: &[],
         fields: &[
-            f("full_gate_current", CURRENT, "current with the gate fully on, weak .. strong corner"),
-            f("amplifier_drive", CURRENT, "output drive of the error amplifier at the gate"),
+            f(
+                "full_gate_current",
+                CURRENT,
+                "current with the gate fully on, weak .. strong corner",
+            ),
+            f(
+                "amplifier_drive",
+                CURRENT,
+                "output drive of the error amplifier at the gate",
+            ),
             DESCRIPTION,
         ],
     },
@@ -179,16 +275,52 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "a current limit; `scheme` says which kind",
         children: &[],
         fields: &[
-            f("scheme", FieldType::Choice(SCHEMES), "`replica` (sensed) or `undervoltage_fixed`"),
+            f(
+                "scheme",
+                FieldType::Choice(SCHEMES),
+                "`replica` (sensed) or `undervoltage_fixed`",
+            ),
             f("ratio", RATIO, "replica: pass-to-replica size ratio"),
-            f("reference", CURRENT, "replica: reference current of the comparator"),
-            f("mismatch", RATIO, "replica: ratio mismatch, a bare tolerance such as `± 8 %`"),
-            f("drain_error", RATIO, "replica: error from the drain-voltage difference, a bare tolerance"),
-            f("threshold", CURRENT, "replica: trip current (usually `ratio * reference`)"),
-            f("clamp_drive", CURRENT, "replica: drive of the clamp on the pass gate"),
-            f("threshold_voltage", VOLTAGE, "undervoltage_fixed: output voltage below which the fixed current is used"),
-            f("fixed_current", CURRENT, "undervoltage_fixed: the fixed current"),
-            f("trip_current", CURRENT, "undervoltage_fixed: characterised overload current at which it trips"),
+            f(
+                "reference",
+                CURRENT,
+                "replica: reference current of the comparator",
+            ),
+            f(
+                "mismatch",
+                RATIO,
+                "replica: ratio mismatch, a bare tolerance such as `± 8 %`",
+            ),
+            f(
+                "drain_error",
+                RATIO,
+                "replica: error from the drain-voltage difference, a bare tolerance",
+            ),
+            f(
+                "threshold",
+                CURRENT,
+                "replica: trip current (usually `ratio * reference`)",
+            ),
+            f(
+                "clamp_drive",
+                CURRENT,
+                "replica: drive of the clamp on the pass gate",
+            ),
+            f(
+                "threshold_voltage",
+                VOLTAGE,
+                "undervoltage_fixed: output voltage below which the fixed current is used",
+            ),
+            f(
+                "fixed_current",
+                CURRENT,
+                "undervoltage_fixed: the fixed current",
+            ),
+            f(
+                "trip_current",
+                CURRENT,
+                "undervoltage_fixed: characterised overload current at which it trips",
+            ),
             DESCRIPTION,
         ],
     },
@@ -199,8 +331,16 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "thermal shutdown",
         children: &[],
         fields: &[
-            f("threshold", ABS_TEMP, "junction temperature at which the block shuts down"),
-            f("hysteresis", DELTA_TEMP, "temperature drop before it restarts"),
+            f(
+                "threshold",
+                ABS_TEMP,
+                "junction temperature at which the block shuts down",
+            ),
+            f(
+                "hysteresis",
+                DELTA_TEMP,
+                "temperature drop before it restarts",
+            ),
             DESCRIPTION,
         ],
     },
@@ -223,9 +363,21 @@ pub const BLOCKS: &[BlockSpec] = &[
         children: &[],
         fields: &[
             f("time_max", TIME, "required startup time"),
-            f("slew", q(Dimension::SLEW_RATE), "output ramp rate set by a soft start"),
-            f("supply_surge_max", CURRENT, "largest surge the supply may see"),
-            f("load", CURRENT, "load during startup (default: the rated load)"),
+            f(
+                "slew",
+                q(Dimension::SLEW_RATE),
+                "output ramp rate set by a soft start",
+            ),
+            f(
+                "supply_surge_max",
+                CURRENT,
+                "largest surge the supply may see",
+            ),
+            f(
+                "load",
+                CURRENT,
+                "load during startup (default: the rated load)",
+            ),
             DESCRIPTION,
         ],
     },
@@ -236,19 +388,51 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "on-die metal (`layer`), a bond wire (`diameter`) or a board trace (`placement`)",
         children: &[],
         fields: &[
-            f("carries", FieldType::Ref(&[BlockKind::Pass, BlockKind::Pin]), "what current flows through it"),
-            f("layer", FieldType::Ref(&[BlockKind::Metal]), "metal: the process layer"),
+            f(
+                "carries",
+                FieldType::Ref(&[BlockKind::Pass, BlockKind::Pin]),
+                "what current flows through it",
+            ),
+            f(
+                "layer",
+                FieldType::Ref(&[BlockKind::Metal]),
+                "metal: the process layer",
+            ),
             f("width", LENGTH, "metal or trace width"),
             f("length", LENGTH, "length (information)"),
             f("diameter", LENGTH, "bond wire diameter"),
-            f("material", FieldType::Choice(&["copper", "aluminium", "gold"]), "bond wire material"),
-            f("placement", FieldType::Choice(&["external", "internal"]), "board trace: outer or inner layer"),
+            f(
+                "material",
+                FieldType::Choice(&["copper", "aluminium", "gold"]),
+                "bond wire material",
+            ),
+            f(
+                "placement",
+                FieldType::Choice(&["external", "internal"]),
+                "board trace: outer or inner layer",
+            ),
             f("thickness", LENGTH, "board trace copper thickness"),
-            f("temperature_rise", DELTA_TEMP, "board trace: allowed temperature rise"),
-            f("temperature", ABS_TEMP, "temperature the conductor sees (default: junction_max, or ambient max for traces)"),
-            f("rating", CURRENT, "explicit current rating; overrides geometry"),
+            f(
+                "temperature_rise",
+                DELTA_TEMP,
+                "board trace: allowed temperature rise",
+            ),
+            f(
+                "temperature",
+                ABS_TEMP,
+                "temperature the conductor sees (default: junction_max, or ambient max for traces)",
+            ),
+            f(
+                "rating",
+                CURRENT,
+                "explicit current rating; overrides geometry",
+            ),
             f("lifetime", TIME, "lifetime the rating is meant for"),
-            f("derating", RATIO, "fraction of the fusing current allowed for a bond wire"),
+            f(
+                "derating",
+                RATIO,
+                "fraction of the fusing current allowed for a bond wire",
+            ),
             DESCRIPTION,
         ],
     },
@@ -259,13 +443,37 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "a fault-test case of the verification plan",
         children: &[],
         fields: &[
-            f("pin", FieldType::Ref(&[BlockKind::Pin]), "where the fault is applied"),
+            f(
+                "pin",
+                FieldType::Ref(&[BlockKind::Pin]),
+                "where the fault is applied",
+            ),
             f("event", FieldType::Choice(EVENTS), "what happens"),
-            f("exercises", FieldType::Ref(&[BlockKind::Limit, BlockKind::ThermalShutdown, BlockKind::Foldback]), "the protection this case exercises"),
+            f(
+                "exercises",
+                FieldType::Ref(&[
+                    BlockKind::Limit,
+                    BlockKind::ThermalShutdown,
+                    BlockKind::Foldback,
+                ]),
+                "the protection this case exercises",
+            ),
             named("expect", "current", CURRENT, true, "expected current bound"),
-            named("expect", "junction", ABS_TEMP, true, "expected junction temperature bound"),
+            named(
+                "expect",
+                "junction",
+                ABS_TEMP,
+                true,
+                "expected junction temperature bound",
+            ),
             named("expect", "time", TIME, true, "expected time bound"),
-            named("expect", "output", VOLTAGE, true, "expected output voltage bound"),
+            named(
+                "expect",
+                "output",
+                VOLTAGE,
+                true,
+                "expected output voltage bound",
+            ),
             DESCRIPTION,
         ],
     },
@@ -276,7 +484,11 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "a stability analysis of a limit loop",
         children: &[],
         fields: &[
-            f("loop", FieldType::Ref(&[BlockKind::Limit]), "the limit whose loop is analysed"),
+            f(
+                "loop",
+                FieldType::Ref(&[BlockKind::Limit]),
+                "the limit whose loop is analysed",
+            ),
             named(
                 "force",
                 "*",
@@ -288,9 +500,25 @@ pub const BLOCKS: &[BlockSpec] = &[
                 false,
                 "how a pin is forced: a voltage, a resistance, or (wrongly) a current",
             ),
-            f("break_at", FieldType::Node, "where the loop is broken, e.g. `pass.gate`"),
-            named("require", "phase_margin", q(Dimension::ANGLE), true, "required phase margin"),
-            named("require", "gain_margin", FieldType::Quantity(QuantityKind::of(Dimension::LEVEL)), true, "required gain margin"),
+            f(
+                "break_at",
+                FieldType::Node,
+                "where the loop is broken, e.g. `pass.gate`",
+            ),
+            named(
+                "require",
+                "phase_margin",
+                q(Dimension::ANGLE),
+                true,
+                "required phase margin",
+            ),
+            named(
+                "require",
+                "gain_margin",
+                FieldType::Quantity(QuantityKind::of(Dimension::LEVEL)),
+                true,
+                "required gain margin",
+            ),
             DESCRIPTION,
         ],
     },
@@ -298,7 +526,10 @@ pub const BLOCKS: &[BlockSpec] = &[
 
 /// The spec of a block kind.
 pub fn block_spec(kind: BlockKind) -> &'static BlockSpec {
-    BLOCKS.iter().find(|b| b.kind == kind).expect("every kind has a spec")
+    BLOCKS
+        .iter()
+        .find(|b| b.kind == kind)
+        .expect("every kind has a spec")
 }
 
 /// The spec of a block keyword allowed inside `parent` (or at top level for `None`).
@@ -314,7 +545,11 @@ pub fn child_spec(parent: Option<BlockKind>, keyword: &str) -> Option<&'static B
 }
 
 /// The spec of a field `keyword [name]` in a block kind.
-pub fn field_spec(kind: BlockKind, keyword: &str, name: Option<&str>) -> Option<&'static FieldSpec> {
+pub fn field_spec(
+    kind: BlockKind,
+    keyword: &str,
+    name: Option<&str>,
+) -> Option<&'static FieldSpec> {
     block_spec(kind).fields.iter().find(|f| {
         f.keyword == keyword
             && match (f.name, name) {
@@ -335,18 +570,76 @@ impl FieldType {
     pub fn describe(&self) -> String {
         match self {
             FieldType::Quantity(k) => k.describe(),
-            FieldType::AnyOf(ks) => ks.iter().map(|k| k.describe()).collect::<Vec<_>>().join(" or "),
+            FieldType::AnyOf(ks) => ks
+                .iter()
+                .map(|k| k.describe())
+                .collect::<Vec<_>>()
+                .join(" or "),
             FieldType::Bool => "`true` or `false`".to_string(),
             FieldType::Choice(options) => format!(
                 "one of {}",
-                options.iter().map(|o| format!("`{o}`")).collect::<Vec<_>>().join(", ")
+                options
+                    .iter()
+                    .map(|o| format!("`{o}`"))
+                    .collect::<Vec<_>>()
+                    .join(", ")
             ),
             FieldType::Ref(kinds) => format!(
                 "the name of a {}",
-                kinds.iter().map(|k| block_spec(*k).keyword).collect::<Vec<_>>().join(" or ")
+                kinds
+                    .iter()
+                    .map(|k| block_spec(*k).keyword)
+                    .collect::<Vec<_>>()
+                    .join(" or ")
             ),
             FieldType::Node => "a node such as `pass.gate` or a pin name".to_string(),
             FieldType::Text => "a quoted string".to_string(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const REFERENCE: &str = include_str!("../../guardband-syntax/REFERENCE.md");
+
+    #[test]
+    fn reference_lists_every_block_field_and_unit() {
+        for block in BLOCKS {
+            assert!(
+                REFERENCE.contains(&format!("`{}", block.keyword)),
+                "block {} missing",
+                block.keyword
+            );
+            for field in block.fields {
+                let shown = match field.name {
+                    Some("*") => format!("`{} NAME`", field.keyword),
+                    Some(n) => format!("`{} {n}`", field.keyword),
+                    None => format!("`{}`", field.keyword),
+                };
+                assert!(
+                    REFERENCE.contains(&shown),
+                    "{} field {shown} missing from REFERENCE.md",
+                    block.keyword
+                );
+            }
+        }
+        for unit in guardband_units::UNITS {
+            assert!(
+                REFERENCE.contains(&format!("`{}`", unit.symbol)),
+                "unit {} missing",
+                unit.symbol
+            );
+        }
+    }
+
+    #[test]
+    fn every_child_kind_has_a_spec() {
+        for block in BLOCKS {
+            for child in block.children {
+                assert_eq!(block_spec(*child).kind, *child);
+            }
         }
     }
 }

@@ -16,7 +16,10 @@ pub fn edit_distance(a: &str, b: &str) -> usize {
 }
 
 /// The closest candidate to `word`, if one is close enough to be a likely typo.
-pub fn did_you_mean<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<String> {
+pub fn did_you_mean<'a>(
+    word: &str,
+    candidates: impl IntoIterator<Item = &'a str>,
+) -> Option<String> {
     let limit = (word.chars().count() / 3).max(1);
     candidates
         .into_iter()
@@ -33,7 +36,10 @@ mod tests {
 
     #[test]
     fn suggests_close_names() {
-        assert_eq!(did_you_mean("suply", ["supply", "output"]), Some("supply".into()));
+        assert_eq!(
+            did_you_mean("suply", ["supply", "output"]),
+            Some("supply".into())
+        );
         assert_eq!(did_you_mean("xyz", ["supply", "output"]), None);
         assert_eq!(edit_distance("kitten", "sitting"), 3);
     }

@@ -51,7 +51,10 @@ pub struct Value {
 #[derive(Debug, Clone, PartialEq)]
 pub enum ValueError {
     /// Operands of `+`, `-`, `..`, `min`, `max` have different kinds.
-    Mismatch { left: QuantityKind, right: QuantityKind },
+    Mismatch {
+        left: QuantityKind,
+        right: QuantityKind,
+    },
     /// An absolute temperature used where only differences make sense.
     AbsoluteTemperature(&'static str),
     /// `a / b` where `b`'s range includes zero.
@@ -59,7 +62,10 @@ pub enum ValueError {
     /// `sqrt` of a range that goes below zero, or of an odd dimension.
     BadSqrt(&'static str),
     /// A tolerance that is neither relative nor in the value's kind.
-    BadTolerance { base: QuantityKind, tolerance: QuantityKind },
+    BadTolerance {
+        base: QuantityKind,
+        tolerance: QuantityKind,
+    },
     /// A result that is not a finite number.
     NotFinite,
 }
@@ -102,7 +108,11 @@ type Result<T> = std::result::Result<T, ValueError>;
 fn merge_terms(a: &[Term], ka: f64, b: &[Term], kb: f64) -> Vec<Term> {
     let mut out: Vec<Term> = a
         .iter()
-        .map(|t| Term { source: t.source, low: t.low * ka, high: t.high * ka })
+        .map(|t| Term {
+            source: t.source,
+            low: t.low * ka,
+            high: t.high * ka,
+        })
         .collect();
     for t in b {
         match out.iter_mut().find(|o| o.source == t.source) {
@@ -110,7 +120,11 @@ fn merge_terms(a: &[Term], ka: f64, b: &[Term], kb: f64) -> Vec<Term> {
                 o.low += t.low * kb;
                 o.high += t.high * kb;
             }
-            None => out.push(Term { source: t.source, low: t.low * kb, high: t.high * kb }),
+            None => out.push(Term {
+                source: t.source,
+                low: t.low * kb,
+                high: t.high * kb,
+            }),
         }
     }
     out
@@ -123,7 +137,14 @@ fn scale_terms(a: &[Term], k: f64) -> Vec<Term> {
 impl Value {
     /// An exact value (no tolerance).
     pub fn exact(kind: QuantityKind, si: f64) -> Value {
-        Value { kind, nom: si, lo: si, hi: si, terms: Vec::new(), unit: None }
+        Value {
+            kind,
+            nom: si,
+            lo: si,
+            hi: si,
+            terms: Vec::new(),
+            unit: None,
+        }
     }
 
     /// A range `lo .. hi` stated by the user: nominal at the middle, one source.
@@ -134,7 +155,11 @@ impl Value {
             nom,
             lo,
             hi,
-            terms: vec![Term { source, low: lo - nom, high: hi - nom }],
+            terms: vec![Term {
+                source,
+                low: lo - nom,
+                high: hi - nom,
+            }],
             unit: None,
         }
     }
@@ -222,7 +247,9 @@ impl Value {
 
     /// `-self`.
     pub fn neg(&self) -> Result<Value> {
-        self.no_absolute("an absolute temperature cannot be negated; write the minus sign on the number")?;
+        self.no_absolute(
+            "an absolute temperature cannot be negated; write the minus sign on the number",
+        )?;
         Value {
             kind: self.kind,
             nom: -self.nom,
@@ -235,7 +262,11 @@ impl Value {
     }
 
     fn product_kind(a: QuantityKind, b: QuantityKind, divide: bool) -> QuantityKind {
-        let dim = if divide { a.dim.div(b.dim) } else { a.dim.mul(b.dim) };
+        let dim = if divide {
+            a.dim.per(b.dim)
+        } else {
+            a.dim.times(b.dim)
+        };
         let temp = if dim.is_none() || dim != guardband_units::Dimension::TEMPERATURE {
             TempSense::Difference
         } else if a.temp == TempSense::Either || b.temp == TempSense::Either {
@@ -294,7 +325,11 @@ impl Value {
         };
         let mut out = self.mul(&inverse)?;
         out.kind = Self::product_kind(self.kind, other.kind, true);
-        out.unit = if other.kind.dim.is_none() { self.unit.clone() } else { None };
+        out.unit = if other.kind.dim.is_none() {
+            self.unit.clone()
+        } else {
+            None
+        };
         out.check()
     }
 
@@ -330,15 +365,24 @@ impl Value {
 
     fn same_kind(&self, other: &Value) -> Result<QuantityKind> {
         if self.kind.fits(other.kind) {
-            Ok(if self.kind.temp == TempSense::Either { other.kind } else { self.kind })
+            Ok(if self.kind.temp == TempSense::Either {
+                other.kind
+            } else {
+                self.kind
+            })
         } else {
-            Err(ValueError::Mismatch { left: self.kind, right: other.kind })
+            Err(ValueError::Mismatch {
+                left: self.kind,
+                right: other.kind,
+            })
         }
     }
 
     /// `|self|`; a range that crosses zero has a low bound of zero.
     pub fn abs(&self) -> Result<Value> {
-        self.no_absolute("`abs` of an absolute temperature depends on the scale; use a difference")?;
+        self.no_absolute(
+            "`abs` of an absolute temperature depends on the scale; use a difference",
+        )?;
         let (lo, hi) = if self.lo >= 0.0 {
             (self.lo, self.hi)
         } else if self.hi <= 0.0 {
@@ -361,13 +405,13 @@ impl Value {
     /// `sqrt(self)`; needs even exponents and a range that stays at or above zero.
     pub fn sqrt(&self) -> Result<Value> {
         self.no_absolute("`sqrt` of an absolute temperature depends on the scale")?;
-        let dim = self
-            .kind
-            .dim
-            .sqrt()
-            .ok_or(ValueError::BadSqrt("the square root of this unit has fractional powers"))?;
+        let dim = self.kind.dim.sqrt().ok_or(ValueError::BadSqrt(
+            "the square root of this unit has fractional powers",
+        ))?;
         if self.lo < 0.0 {
-            return Err(ValueError::BadSqrt("square root of a range that goes below zero"));
+            return Err(ValueError::BadSqrt(
+                "square root of a range that goes below zero",
+            ));
         }
         let root = self.nom.sqrt();
         let slope = if root > 0.0 { 0.5 / root } else { 0.0 };
@@ -393,7 +437,10 @@ impl Value {
     ) -> Result<Value> {
         let (low_dev, high_dev) = if tol_kind.dim.is_none() {
             if self.kind.is_temperature() && self.kind.temp == TempSense::Absolute {
-                return Err(ValueError::BadTolerance { base: self.kind, tolerance: tol_kind });
+                return Err(ValueError::BadTolerance {
+                    base: self.kind,
+                    tolerance: tol_kind,
+                });
             }
             let scale = Value {
                 kind: QuantityKind::NONE,
@@ -404,11 +451,19 @@ impl Value {
                 unit: None,
             };
             let scaled = self.mul(&scale)?;
-            let mut out = Value { kind: self.kind, unit: self.unit.clone(), ..scaled };
+            let mut out = Value {
+                kind: self.kind,
+                unit: self.unit.clone(),
+                ..scaled
+            };
             out.terms = merge_terms(
                 &self.terms,
                 1.0,
-                &[Term { source, low: -down * self.nom, high: up * self.nom }],
+                &[Term {
+                    source,
+                    low: -down * self.nom,
+                    high: up * self.nom,
+                }],
                 1.0,
             );
             return out.check();
@@ -417,14 +472,26 @@ impl Value {
         {
             (-down, up)
         } else {
-            return Err(ValueError::BadTolerance { base: self.kind, tolerance: tol_kind });
+            return Err(ValueError::BadTolerance {
+                base: self.kind,
+                tolerance: tol_kind,
+            });
         };
         Value {
             kind: self.kind,
             nom: self.nom,
             lo: self.lo + low_dev,
             hi: self.hi + high_dev,
-            terms: merge_terms(&self.terms, 1.0, &[Term { source, low: low_dev, high: high_dev }], 1.0),
+            terms: merge_terms(
+                &self.terms,
+                1.0,
+                &[Term {
+                    source,
+                    low: low_dev,
+                    high: high_dev,
+                }],
+                1.0,
+            ),
             unit: self.unit.clone(),
         }
         .check()
@@ -437,7 +504,10 @@ impl Value {
             Corner::Nom => self.nom,
             Corner::Max => self.hi,
         };
-        Value { unit: self.unit.clone(), ..Value::exact(self.kind, si) }
+        Value {
+            unit: self.unit.clone(),
+            ..Value::exact(self.kind, si)
+        }
     }
 }
 
@@ -475,7 +545,10 @@ mod tests {
     #[test]
     fn division_by_range_with_zero_is_an_error() {
         let a = r(1.0, 2.0, 0);
-        assert_eq!(a.div(&n(-1.0, 1.0, 1)), Err(ValueError::DivisorIncludesZero));
+        assert_eq!(
+            a.div(&n(-1.0, 1.0, 1)),
+            Err(ValueError::DivisorIncludesZero)
+        );
         assert_eq!(a.div(&n(0.0, 1.0, 1)), Err(ValueError::DivisorIncludesZero));
         let q = a.div(&n(2.0, 4.0, 1)).unwrap();
         assert_eq!((q.lo, q.hi), (0.25, 1.0));
@@ -492,7 +565,11 @@ mod tests {
         assert!((reference.hi - 53.1e-6).abs() < 1e-12);
         // reference - reference is exactly zero in first order: the term cancels.
         let zero = reference.sub(&reference).unwrap();
-        assert!(zero.terms.iter().all(|t| t.low.abs() < 1e-18 && t.high.abs() < 1e-18));
+        assert!(
+            zero.terms
+                .iter()
+                .all(|t| t.low.abs() < 1e-18 && t.high.abs() < 1e-18)
+        );
         // ... while the guaranteed bounds stay conservative.
         assert!(zero.hi > 0.0);
     }
@@ -501,8 +578,14 @@ mod tests {
     fn temperatures_follow_affine_rules() {
         let t_abs = Value::exact(QuantityKind::ABSOLUTE_TEMPERATURE, 343.15);
         let rise = Value::exact(QuantityKind::TEMPERATURE_DIFFERENCE, 40.0);
-        assert_eq!(t_abs.add(&rise).unwrap().kind, QuantityKind::ABSOLUTE_TEMPERATURE);
-        assert_eq!(t_abs.sub(&t_abs).unwrap().kind, QuantityKind::TEMPERATURE_DIFFERENCE);
+        assert_eq!(
+            t_abs.add(&rise).unwrap().kind,
+            QuantityKind::ABSOLUTE_TEMPERATURE
+        );
+        assert_eq!(
+            t_abs.sub(&t_abs).unwrap().kind,
+            QuantityKind::TEMPERATURE_DIFFERENCE
+        );
         assert!(t_abs.add(&t_abs).is_err());
         assert!(t_abs.mul(&Value::exact(QuantityKind::NONE, 2.0)).is_err());
         assert!(

@@ -43,7 +43,15 @@ impl Workspace {
             .map(|p| p.to_string_lossy().replace('\\', "/"))
             .unwrap_or_else(|_| path.to_string_lossy().into_owned());
         let line_index = LineIndex::new(&text);
-        self.files.push(SourceFile { id, path, display, text, parse: Parse::default(), line_index, imports: Vec::new() });
+        self.files.push(SourceFile {
+            id,
+            path,
+            display,
+            text,
+            parse: Parse::default(),
+            line_index,
+            imports: Vec::new(),
+        });
         id
     }
 
@@ -111,7 +119,10 @@ pub fn decode(bytes: &[u8]) -> Result<String, (String, usize, String)> {
             Err((
                 lossy,
                 e.valid_up_to(),
-                format!("this file is not valid UTF-8 (bad byte at offset {})", e.valid_up_to()),
+                format!(
+                    "this file is not valid UTF-8 (bad byte at offset {})",
+                    e.valid_up_to()
+                ),
             ))
         }
     }
@@ -120,9 +131,16 @@ pub fn decode(bytes: &[u8]) -> Result<String, (String, usize, String)> {
 /// Loads the given files and everything they import. Diagnostics for bad
 /// encodings, missing imports, imports leaving `root` and import cycles are
 /// pushed to `diagnostics`. Unreadable entry files are returned as errors.
-pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>) -> Result<Workspace, (PathBuf, std::io::Error)> {
+pub fn load(
+    root: &Path,
+    entries: &[PathBuf],
+    diagnostics: &mut Vec<Diagnostic>,
+) -> Result<Workspace, (PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
-    let mut ws = Workspace { root: root.clone(), files: Vec::new() };
+    let mut ws = Workspace {
+        root: root.clone(),
+        files: Vec::new(),
+    };
     let mut queue: Vec<FileId> = Vec::new();
     for entry in entries {
         let path = entry.canonicalize().map_err(|e| (entry.clone(), e))?;
@@ -135,7 +153,11 @@ pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>)
     }
     while let Some(id) = queue.pop() {
         let file = ws.file(id).clone();
-        let dir = file.path.parent().map(Path::to_path_buf).unwrap_or_default();
+        let dir = file
+            .path
+            .parent()
+            .map(Path::to_path_buf)
+            .unwrap_or_default();
         let mut imports = Vec::new();
         for item in &file.parse.file.items {
             let Item::Use(u) = item else { continue };
@@ -160,9 +182,14 @@ pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>)
                 Ok(c) => c,
                 Err(_) => {
                     diagnostics.push(
-                        Diagnostic::error("import-not-found", id, u.path_span.clone(), format!("cannot find `{}`", u.path))
-                            .primary("no such file")
-                            .help("paths in `use` are relative to the importing file"),
+                        Diagnostic::error(
+                            "import-not-found",
+                            id,
+                            u.path_span.clone(),
+                            format!("cannot find `{}`", u.path),
+                        )
+                        .primary("no such file")
+                        .help("paths in `use` are relative to the importing file"),
                     );
                     continue;
                 }
@@ -173,7 +200,10 @@ pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>)
                         "import-outside-workspace",
                         id,
                         u.path_span.clone(),
-                        format!("`{}` resolves (through a link) outside the workspace root", u.path),
+                        format!(
+                            "`{}` resolves (through a link) outside the workspace root",
+                            u.path
+                        ),
                     )
                     .primary("this path leaves the workspace"),
                 );
@@ -189,8 +219,13 @@ pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>)
                     }
                     Err(e) => {
                         diagnostics.push(
-                            Diagnostic::error("import-not-found", id, u.path_span.clone(), format!("cannot read `{}`: {e}", u.path))
-                                .primary("unreadable"),
+                            Diagnostic::error(
+                                "import-not-found",
+                                id,
+                                u.path_span.clone(),
+                                format!("cannot read `{}`: {e}", u.path),
+                            )
+                            .primary("unreadable"),
                         );
                         continue;
                     }
@@ -204,7 +239,12 @@ pub fn load(root: &Path, entries: &[PathBuf], diagnostics: &mut Vec<Diagnostic>)
     Ok(ws)
 }
 
-fn add_file(ws: &mut Workspace, path: PathBuf, bytes: &[u8], diagnostics: &mut Vec<Diagnostic>) -> FileId {
+fn add_file(
+    ws: &mut Workspace,
+    path: PathBuf,
+    bytes: &[u8],
+    diagnostics: &mut Vec<Diagnostic>,
+) -> FileId {
     let id = FileId(ws.files.len() as u32);
     let display = path
         .strip_prefix(&ws.root)
@@ -230,7 +270,15 @@ fn add_file(ws: &mut Workspace, path: PathBuf, bytes: &[u8], diagnostics: &mut V
         }
     };
     let line_index = LineIndex::new(&text);
-    ws.files.push(SourceFile { id, path, display, text, parse: parsed, line_index, imports: Vec::new() });
+    ws.files.push(SourceFile {
+        id,
+        path,
+        display,
+        text,
+        parse: parsed,
+        line_index,
+        imports: Vec::new(),
+    });
     id
 }
 
@@ -244,7 +292,13 @@ fn report_cycles(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) {
     }
     let mut marks = vec![Mark::New; ws.files.len()];
     let mut stack: Vec<FileId> = Vec::new();
-    fn visit(ws: &Workspace, id: FileId, marks: &mut [Mark], stack: &mut Vec<FileId>, diagnostics: &mut Vec<Diagnostic>) {
+    fn visit(
+        ws: &Workspace,
+        id: FileId,
+        marks: &mut [Mark],
+        stack: &mut Vec<FileId>,
+        diagnostics: &mut Vec<Diagnostic>,
+    ) {
         marks[id.0 as usize] = Mark::Active;
         stack.push(id);
         for (next, span) in &ws.file(id).imports {
@@ -253,12 +307,20 @@ fn report_cycles(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) {
                 Mark::New => visit(ws, next, marks, stack, diagnostics),
                 Mark::Active => {
                     let start = stack.iter().position(|f| *f == next).unwrap_or(0);
-                    let mut chain: Vec<&str> = stack[start..].iter().map(|f| ws.file(*f).display.as_str()).collect();
+                    let mut chain: Vec<&str> = stack[start..]
+                        .iter()
+                        .map(|f| ws.file(*f).display.as_str())
+                        .collect();
                     chain.push(ws.file(next).display.as_str());
                     diagnostics.push(
-                        Diagnostic::error("cycle", id, span.clone(), format!("import cycle: {}", chain.join(" → ")))
-                            .primary("this import closes the cycle")
-                            .help("move the shared items into a file that both can import"),
+                        Diagnostic::error(
+                            "cycle",
+                            id,
+                            span.clone(),
+                            format!("import cycle: {}", chain.join(" → ")),
+                        )
+                        .primary("this import closes the cycle")
+                        .help("move the shared items into a file that both can import"),
                     );
                 }
                 Mark::Done => {}

@@ -44,13 +44,48 @@ impl Default for Config {
 
 /// Documented keys of `guardband.toml`: (key, what it takes, meaning, default).
 pub const KEYS: &[(&str, &str, &str, &str)] = &[
-    ("margin", "a percentage string such as \"20 %\", or a fraction", "required margin of a limit's low edge above rated load", "\"20 %\" (common practice, no source)"),
-    ("statistical", "true or false", "also check the root-sum-square window", "true"),
-    ("sigma", "a number", "how many standard deviations a stated ± stands for", "3"),
-    ("escape_ppm", "a number", "largest share of parts (ppm) whose limit may trip below rated load plus margin, by the normal approximation", "1 (common practice, no source)"),
-    ("lifetime", "a time string such as \"10 yr\"", "target lifetime for electromigration ratings", "none (no lifetime derating)"),
-    ("deny", "a list, e.g. [\"warnings\"]", "also fail on warnings", "[]"),
-    ("[rules]", "rule = \"error\" | \"warning\" | \"info\" | \"off\"", "per-rule severity", "each rule's default"),
+    (
+        "margin",
+        "a percentage string such as \"20 %\", or a fraction",
+        "required margin of a limit's low edge above rated load",
+        "\"20 %\" (common practice, no source)",
+    ),
+    (
+        "statistical",
+        "true or false",
+        "also check the root-sum-square window",
+        "true",
+    ),
+    (
+        "sigma",
+        "a number",
+        "how many standard deviations a stated ± stands for",
+        "3",
+    ),
+    (
+        "escape_ppm",
+        "a number",
+        "largest share of parts (ppm) whose limit may trip below rated load plus margin, by the normal approximation",
+        "1 (common practice, no source)",
+    ),
+    (
+        "lifetime",
+        "a time string such as \"10 yr\"",
+        "target lifetime for electromigration ratings",
+        "none (no lifetime derating)",
+    ),
+    (
+        "deny",
+        "a list, e.g. [\"warnings\"]",
+        "also fail on warnings",
+        "[]",
+    ),
+    (
+        "[rules]",
+        "rule = \"error\" | \"warning\" | \"info\" | \"off\"",
+        "per-rule severity",
+        "each rule's default",
+    ),
 ];
 
 fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
@@ -59,7 +94,12 @@ fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
         let trimmed = line.trim_start();
         let indent = line.len() - trimmed.len();
         let bare = trimmed.trim_start_matches('"');
-        if bare.starts_with(key) && bare[key.len()..].trim_start_matches('"').trim_start().starts_with('=') {
+        if bare.starts_with(key)
+            && bare[key.len()..]
+                .trim_start_matches('"')
+                .trim_start()
+                .starts_with('=')
+        {
             return offset + indent..offset + indent + trimmed.find('=').unwrap_or(key.len());
         }
         offset += line.len();
@@ -70,7 +110,11 @@ fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
 /// Parses a quantity string like `"20 %"` or `"10 yr"` to SI.
 fn quantity(text: &str) -> Option<(f64, guardband_units::QuantityKind)> {
     let text = text.trim();
-    let split = text.find(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-' || c == '+' || c == 'e' || c == 'E')).unwrap_or(text.len());
+    let split = text
+        .find(|c: char| {
+            !(c.is_ascii_digit() || c == '.' || c == '-' || c == '+' || c == 'e' || c == 'E')
+        })
+        .unwrap_or(text.len());
     let (num, unit) = text.split_at(split);
     let n: f64 = num.trim().parse().ok()?;
     let unit = unit.trim();
@@ -96,62 +140,110 @@ impl Config {
         config.file = Some(file);
         let mut diags = Vec::new();
         let bad = |key: &str, msg: String, help: &str| {
-            Diagnostic::error("config", file, key_span(&text, key), msg).primary("here").help(help.to_string())
+            Diagnostic::error("config", file, key_span(&text, key), msg)
+                .primary("here")
+                .help(help.to_string())
         };
         let table: toml::Table = match text.parse() {
             Ok(t) => t,
             Err(e) => {
                 let span = e.span().unwrap_or(0..0);
                 diags.push(
-                    Diagnostic::error("config", file, span, format!("guardband.toml is not valid TOML: {}", e.message()))
-                        .primary("here"),
+                    Diagnostic::error(
+                        "config",
+                        file,
+                        span,
+                        format!("guardband.toml is not valid TOML: {}", e.message()),
+                    )
+                    .primary("here"),
                 );
                 return (config, diags);
             }
         };
-        let known = ["margin", "statistical", "sigma", "escape_ppm", "lifetime", "deny", "rules"];
+        let known = [
+            "margin",
+            "statistical",
+            "sigma",
+            "escape_ppm",
+            "lifetime",
+            "deny",
+            "rules",
+        ];
         for (key, value) in &table {
             match key.as_str() {
                 "margin" => match value {
                     toml::Value::Float(f) => config.margin = *f,
                     toml::Value::String(s) => match quantity(s) {
                         Some((v, k)) if k.dim.is_none() => config.margin = v,
-                        _ => diags.push(bad(key, format!("`margin = \"{s}\"` is not a percentage"), "write e.g. `margin = \"20 %\"`")),
+                        _ => diags.push(bad(
+                            key,
+                            format!("`margin = \"{s}\"` is not a percentage"),
+                            "write e.g. `margin = \"20 %\"`",
+                        )),
                     },
-                    _ => diags.push(bad(key, "`margin` takes a percentage".into(), "write e.g. `margin = \"20 %\"`")),
+                    _ => diags.push(bad(
+                        key,
+                        "`margin` takes a percentage".into(),
+                        "write e.g. `margin = \"20 %\"`",
+                    )),
                 },
                 "statistical" => match value {
                     toml::Value::Boolean(b) => config.statistical = *b,
-                    _ => diags.push(bad(key, "`statistical` takes true or false".into(), "write `statistical = true`")),
+                    _ => diags.push(bad(
+                        key,
+                        "`statistical` takes true or false".into(),
+                        "write `statistical = true`",
+                    )),
                 },
                 "sigma" => match value {
                     toml::Value::Float(f) if *f > 0.0 => config.sigma = *f,
                     toml::Value::Integer(i) if *i > 0 => config.sigma = *i as f64,
-                    _ => diags.push(bad(key, "`sigma` takes a positive number".into(), "write e.g. `sigma = 3`")),
+                    _ => diags.push(bad(
+                        key,
+                        "`sigma` takes a positive number".into(),
+                        "write e.g. `sigma = 3`",
+                    )),
                 },
                 "escape_ppm" => match value {
                     toml::Value::Float(f) if *f >= 0.0 => config.escape_ppm = *f,
                     toml::Value::Integer(i) if *i >= 0 => config.escape_ppm = *i as f64,
-                    _ => diags.push(bad(key, "`escape_ppm` takes a number of parts per million".into(), "write e.g. `escape_ppm = 1`")),
+                    _ => diags.push(bad(
+                        key,
+                        "`escape_ppm` takes a number of parts per million".into(),
+                        "write e.g. `escape_ppm = 1`",
+                    )),
                 },
                 "lifetime" => match value.as_str().and_then(quantity) {
-                    Some((v, k)) if k.dim == guardband_units::Dimension::TIME && v > 0.0 => config.lifetime = Some(v),
-                    _ => diags.push(bad(key, "`lifetime` takes a time such as \"10 yr\"".into(), "write e.g. `lifetime = \"10 yr\"`")),
+                    Some((v, k)) if k.dim == guardband_units::Dimension::TIME && v > 0.0 => {
+                        config.lifetime = Some(v)
+                    }
+                    _ => diags.push(bad(
+                        key,
+                        "`lifetime` takes a time such as \"10 yr\"".into(),
+                        "write e.g. `lifetime = \"10 yr\"`",
+                    )),
                 },
                 "deny" => match value.as_array() {
                     Some(items) if items.iter().all(|i| i.as_str() == Some("warnings")) => {
                         config.deny_warnings = !items.is_empty();
                     }
-                    _ => diags.push(bad(key, "`deny` takes a list holding \"warnings\"".into(), "write `deny = [\"warnings\"]`")),
+                    _ => diags.push(bad(
+                        key,
+                        "`deny` takes a list holding \"warnings\"".into(),
+                        "write `deny = [\"warnings\"]`",
+                    )),
                 },
                 "rules" => match value.as_table() {
                     Some(rules) => {
                         for (rule, sev) in rules {
                             if !crate::registry().iter().any(|r| r.name == rule) {
-                                let names: Vec<&str> = crate::registry().iter().map(|r| r.name).collect();
+                                let names: Vec<&str> =
+                                    crate::registry().iter().map(|r| r.name).collect();
                                 let help = did_you_mean(rule, names.iter().copied())
                                     .map(|s| format!("did you mean `{s}`?"))
-                                    .unwrap_or_else(|| "`guardband explain --list` shows every rule".into());
+                                    .unwrap_or_else(|| {
+                                        "`guardband explain --list` shows every rule".into()
+                                    });
                                 diags.push(bad(rule, format!("unknown rule `{rule}`"), &help));
                                 continue;
                             }
@@ -166,17 +258,29 @@ impl Config {
                                 Some(l) => {
                                     config.severities.insert(rule.clone(), l);
                                 }
-                                None => diags.push(bad(rule, format!("bad severity for `{rule}`"), "use \"error\", \"warning\", \"info\" or \"off\"")),
+                                None => diags.push(bad(
+                                    rule,
+                                    format!("bad severity for `{rule}`"),
+                                    "use \"error\", \"warning\", \"info\" or \"off\"",
+                                )),
                             }
                         }
                     }
-                    None => diags.push(bad(key, "`rules` must be a table".into(), "write `[rules]` and then `rule-name = \"warning\"`")),
+                    None => diags.push(bad(
+                        key,
+                        "`rules` must be a table".into(),
+                        "write `[rules]` and then `rule-name = \"warning\"`",
+                    )),
                 },
                 other => {
                     let help = did_you_mean(other, known.iter().copied())
                         .map(|s| format!("did you mean `{s}`?"))
                         .unwrap_or_else(|| format!("known keys: {}", known.join(", ")));
-                    diags.push(bad(other, format!("unknown key `{other}` in guardband.toml"), &help));
+                    diags.push(bad(
+                        other,
+                        format!("unknown key `{other}` in guardband.toml"),
+                        &help,
+                    ));
                 }
             }
         }

@@ -21,16 +21,32 @@ impl<'a> Context<'a> {
 
     /// The span of a field's value, or of the block header when it is missing.
     pub fn value_span(&self, node: &Node, key: &str) -> std::ops::Range<usize> {
-        node.field(key).map(|f| f.expr.span.clone()).unwrap_or(node.header_span.clone())
+        node.field(key)
+            .map(|f| f.expr.span.clone())
+            .unwrap_or(node.header_span.clone())
     }
 
     /// Starts a diagnostic at a field's value (or the block header).
-    pub fn at(&self, rule: &'static str, severity: Severity, node: &Node, key: &str, message: String) -> Diagnostic {
-        Diagnostic::error(rule, node.file, self.value_span(node, key), message).with_severity(severity)
+    pub fn at(
+        &self,
+        rule: &'static str,
+        severity: Severity,
+        node: &Node,
+        key: &str,
+        message: String,
+    ) -> Diagnostic {
+        Diagnostic::error(rule, node.file, self.value_span(node, key), message)
+            .with_severity(severity)
     }
 
     /// Adds a label at a field's value when the field exists.
-    pub fn label(&self, d: Diagnostic, node: &Node, key: &str, message: impl Into<String>) -> Diagnostic {
+    pub fn label(
+        &self,
+        d: Diagnostic,
+        node: &Node,
+        key: &str,
+        message: impl Into<String>,
+    ) -> Diagnostic {
         match node.field(key) {
             Some(f) => d.label(node.file, f.expr.span.clone(), message),
             None => d,

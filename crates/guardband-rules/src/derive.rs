@@ -45,14 +45,28 @@ pub fn statistical(v: &Value, k: f64) -> Statistical {
         mean += (t.high + t.low) / 2.0;
         let s = (t.high - t.low).abs() / 2.0 / k;
         variance += s * s;
-        contributors.push(Contributor { source: t.source, sigma: s, share: 0.0 });
+        contributors.push(Contributor {
+            source: t.source,
+            sigma: s,
+            share: 0.0,
+        });
     }
     for c in &mut contributors {
-        c.share = if variance > 0.0 { c.sigma * c.sigma / variance } else { 0.0 };
+        c.share = if variance > 0.0 {
+            c.sigma * c.sigma / variance
+        } else {
+            0.0
+        };
     }
     contributors.sort_by(|a, b| b.share.total_cmp(&a.share));
     let sigma = variance.sqrt();
-    Statistical { mean, sigma, lo: mean - k * sigma, hi: mean + k * sigma, contributors }
+    Statistical {
+        mean,
+        sigma,
+        lo: mean - k * sigma,
+        hi: mean + k * sigma,
+        contributors,
+    }
 }
 
 /// Parts per million of a normal population that fall below `threshold`.
@@ -151,11 +165,19 @@ fn one_plus(v: &Value) -> Option<Value> {
 pub fn replica_window(limit: &Node) -> Option<Value> {
     let mut window = match limit.quantity("threshold") {
         Some(t) => t.clone(),
-        None => limit.quantity("ratio")?.mul(limit.quantity("reference")?).ok()?,
+        None => limit
+            .quantity("ratio")?
+            .mul(limit.quantity("reference")?)
+            .ok()?,
     };
     for key in ["mismatch", "drain_error"] {
-        let Some(extra) = limit.quantity(key) else { continue };
-        let already = extra.terms.iter().all(|t| window.terms.iter().any(|w| w.source == t.source));
+        let Some(extra) = limit.quantity(key) else {
+            continue;
+        };
+        let already = extra
+            .terms
+            .iter()
+            .all(|t| window.terms.iter().any(|w| w.source == t.source));
         if !already {
             let unit = window.unit.clone();
             window = window.mul(&one_plus(extra)?).ok()?;
@@ -170,35 +192,63 @@ fn limit_windows(model: &Model, reg: &Node, config: &Config) -> Vec<LimitWindow>
     for limit in model.children(reg, BlockKind::Limit) {
         let (scheme, window) = match limit.choice("scheme") {
             Some("replica") => (Scheme::Replica, replica_window(limit)),
-            Some("undervoltage_fixed") => (Scheme::UndervoltageFixed, limit.quantity("fixed_current").cloned()),
+            Some("undervoltage_fixed") => (
+                Scheme::UndervoltageFixed,
+                limit.quantity("fixed_current").cloned(),
+            ),
             _ => continue,
         };
         let Some(window) = window else { continue };
         let stat = statistical(&window, config.sigma);
         let trip = limit.quantity("trip_current").cloned();
-        out.push(LimitWindow { node: limit.id, scheme, window, stat, trip });
+        out.push(LimitWindow {
+            node: limit.id,
+            scheme,
+            window,
+            stat,
+            trip,
+        });
     }
     out
 }
 
 fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<WorstCurrent> {
-    let full_gate = model.child(reg, BlockKind::Pass).and_then(|p| p.quantity("full_gate_current").map(|v| (p.id, v)));
+    let full_gate = model
+        .child(reg, BlockKind::Pass)
+        .and_then(|p| p.quantity("full_gate_current").map(|v| (p.id, v)));
     let mut best: Option<WorstCurrent> = None;
     for l in limits {
         let node = model.node(l.node);
         let (value, reason, field) = match l.scheme {
-            Scheme::Replica => (l.window.hi, format!("top of the `{}` limit window", node.key()), "threshold"),
+            Scheme::Replica => (
+                l.window.hi,
+                format!("top of the `{}` limit window", node.key()),
+                "threshold",
+            ),
             Scheme::UndervoltageFixed => {
                 let trip_hi = l.trip.as_ref().map(|t| t.hi).unwrap_or(f64::NEG_INFINITY);
                 if trip_hi > l.window.hi {
-                    (trip_hi, format!("top of the `{}` characterised trip current", node.key()), "trip_current")
+                    (
+                        trip_hi,
+                        format!("top of the `{}` characterised trip current", node.key()),
+                        "trip_current",
+                    )
                 } else {
-                    (l.window.hi, format!("top of the `{}` fixed current", node.key()), "fixed_current")
+                    (
+                        l.window.hi,
+                        format!("top of the `{}` fixed current", node.key()),
+                        "fixed_current",
+                    )
                 }
             }
         };
         if best.as_ref().is_none_or(|b| value < b.value) {
-            best = Some(WorstCurrent { value, unit: l.window.unit.clone(), reason, from: Some((l.id_node(), field)) });
+            best = Some(WorstCurrent {
+                value,
+                unit: l.window.unit.clone(),
+                reason,
+                from: Some((l.id_node(), field)),
+            });
         }
     }
     match (best, full_gate) {
@@ -206,7 +256,9 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
             value: fg.hi,
             unit: fg.unit.clone(),
             reason: "the full-gate current at the strong corner (below the limit)".into(),
-            from: model.child(reg, BlockKind::Pass).map(|p| (p.id, "full_gate_current")),
+            from: model
+                .child(reg, BlockKind::Pass)
+                .map(|p| (p.id, "full_gate_current")),
         }),
         (Some(b), _) => Some(b),
         (None, Some((pass, fg))) => Some(WorstCurrent {
@@ -233,34 +285,55 @@ fn as_uom<Q: guardband_units::UomQuantity>(v: &Value, si: f64) -> Option<Q> {
 pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) -> ConductorRating {
     let node = c.id;
     if let Some(r) = c.quantity("rating") {
-        return ConductorRating { node, rating: Ok(r.lo), basis: "stated rating (low end)".into() };
+        return ConductorRating {
+            node,
+            rating: Ok(r.lo),
+            basis: "stated rating (low end)".into(),
+        };
     }
     let junction = reg.quantity("junction_max").map(|v| v.hi);
     if let Some(layer_id) = c.reference("layer") {
         let layer = model.node(layer_id);
         let Some(width) = c.quantity("width") else {
-            return ConductorRating { node, rating: Err("metal needs `width`".into()), basis: String::new() };
+            return ConductorRating {
+                node,
+                rating: Err("metal needs `width`".into()),
+                basis: String::new(),
+            };
         };
-        let per_area = match (layer.quantity("current_density"), layer.quantity("thickness")) {
+        let per_area = match (
+            layer.quantity("current_density"),
+            layer.quantity("thickness"),
+        ) {
             (Some(j), Some(t)) => {
                 let (Some(j_u), Some(t_u), Some(w_u)) = (
                     as_uom::<q::ElectricCurrentDensity>(j, j.lo),
                     as_uom::<q::Length>(t, t.lo),
                     as_uom::<q::Length>(width, width.lo),
                 ) else {
-                    return ConductorRating { node, rating: Err("layer data has the wrong units".into()), basis: String::new() };
+                    return ConductorRating {
+                        node,
+                        rating: Err("layer data has the wrong units".into()),
+                        basis: String::new(),
+                    };
                 };
                 Some((j_u, t_u, w_u))
             }
             _ => None,
         };
         let base = match (&per_area, layer.quantity("current_per_width")) {
-            (Some((j, t, w)), _) => conductor::metal_rating(*w, *t, *j, q::Ratio::new::<uom::si::ratio::ratio>(1.0)).value,
+            (Some((j, t, w)), _) => {
+                conductor::metal_rating(*w, *t, *j, q::Ratio::new::<uom::si::ratio::ratio>(1.0))
+                    .value
+            }
             (None, Some(jw)) => jw.lo * width.lo,
             (None, None) => {
                 return ConductorRating {
                     node,
-                    rating: Err(format!("layer `{}` states neither `current_density` with `thickness` nor `current_per_width`", layer.key())),
+                    rating: Err(format!(
+                        "layer `{}` states neither `current_density` with `thickness` nor `current_per_width`",
+                        layer.key()
+                    )),
                     basis: String::new(),
                 };
             }
@@ -274,7 +347,10 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         let mut basis = format!("layer `{}` limit × width", layer.key());
         let mut factor = 1.0;
         if let (Some(t), Some(t_ref)) = (temperature, layer.quantity("reference_temperature")) {
-            match (layer.quantity("activation_energy"), layer.quantity("current_exponent")) {
+            match (
+                layer.quantity("activation_energy"),
+                layer.quantity("current_exponent"),
+            ) {
                 (Some(ea), Some(n)) => {
                     let params = conductor::BlackParameters {
                         activation_energy: q::Energy::new::<uom::si::energy::joule>(ea.nom),
@@ -289,16 +365,23 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
                     };
                     factor = conductor::black_derating(
                         params,
-                        q::ThermodynamicTemperature::new::<uom::si::thermodynamic_temperature::kelvin>(t),
-                        q::ThermodynamicTemperature::new::<uom::si::thermodynamic_temperature::kelvin>(t_ref.nom),
+                        q::ThermodynamicTemperature::new::<
+                            uom::si::thermodynamic_temperature::kelvin,
+                        >(t),
+                        q::ThermodynamicTemperature::new::<
+                            uom::si::thermodynamic_temperature::kelvin,
+                        >(t_ref.nom),
                         life,
                     )
                     .value;
                     basis = format!(
                         "{basis}, derated by Black's equation to {}{} (×{})",
                         crate::format::in_unit(t, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C")),
-                        life.map(|(l, _)| format!(" for {} yr", crate::format::number(l.get::<uom::si::time::year>())))
-                            .unwrap_or_default(),
+                        life.map(|(l, _)| format!(
+                            " for {} yr",
+                            crate::format::number(l.get::<uom::si::time::year>())
+                        ))
+                        .unwrap_or_default(),
                         crate::format::number(factor)
                     );
                 }
@@ -308,7 +391,11 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
                         rating: Err(format!(
                             "layer `{}` is rated at {} but the conductor runs hotter, and `activation_energy`/`current_exponent` are missing to derate it",
                             layer.key(),
-                            crate::format::in_unit(t_ref.nom, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C"))
+                            crate::format::in_unit(
+                                t_ref.nom,
+                                QuantityKind::ABSOLUTE_TEMPERATURE,
+                                Some("°C")
+                            )
                         )),
                         basis,
                     };
@@ -316,34 +403,52 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
                 _ => {}
             }
         }
-        return ConductorRating { node, rating: Ok(base * factor), basis };
+        return ConductorRating {
+            node,
+            rating: Ok(base * factor),
+            basis,
+        };
     }
     if let Some(d) = c.quantity("diameter") {
         let material = c.choice("material").unwrap_or("unstated");
         let Some(a) = conductor::preece_constant(material) else {
             return ConductorRating {
                 node,
-                rating: Err(format!("no Preece constant for `{material}` bond wire; state `rating` from the wire maker's data")),
+                rating: Err(format!(
+                    "no Preece constant for `{material}` bond wire; state `rating` from the wire maker's data"
+                )),
                 basis: String::new(),
             };
         };
         let Some(dia) = as_uom::<q::Length>(d, d.lo) else {
-            return ConductorRating { node, rating: Err("diameter has the wrong unit".into()), basis: String::new() };
+            return ConductorRating {
+                node,
+                rating: Err("diameter has the wrong unit".into()),
+                basis: String::new(),
+            };
         };
         let derating = c.quantity("derating").map(|v| v.lo).unwrap_or(1.0);
         let fuse = conductor::preece_fusing_current(a, dia).value;
         return ConductorRating {
             node,
             rating: Ok(fuse * derating),
-            basis: format!("Preece fusing current of {material} wire × {}", crate::format::number(derating)),
+            basis: format!(
+                "Preece fusing current of {material} wire × {}",
+                crate::format::number(derating)
+            ),
         };
     }
     if let Some(placement) = c.choice("placement") {
         let (Some(w), Some(t)) = (c.quantity("width"), c.quantity("thickness")) else {
-            return ConductorRating { node, rating: Err("a board trace needs `width` and `thickness`".into()), basis: String::new() };
+            return ConductorRating {
+                node,
+                rating: Err("a board trace needs `width` and `thickness`".into()),
+                basis: String::new(),
+            };
         };
         let rise = c.quantity("temperature_rise").map(|v| v.lo).unwrap_or(10.0);
-        let area: q::Area = q::Length::new::<uom::si::length::meter>(w.lo) * q::Length::new::<uom::si::length::meter>(t.lo);
+        let area: q::Area = q::Length::new::<uom::si::length::meter>(w.lo)
+            * q::Length::new::<uom::si::length::meter>(t.lo);
         let i = conductor::ipc2221_current(
             placement == "external",
             q::TemperatureInterval::new::<uom::si::temperature_interval::kelvin>(rise),
@@ -352,7 +457,10 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         return ConductorRating {
             node,
             rating: Ok(i.value),
-            basis: format!("IPC-2221 {placement} trace for a {} K rise", crate::format::number(rise)),
+            basis: format!(
+                "IPC-2221 {placement} trace for a {} K rise",
+                crate::format::number(rise)
+            ),
         };
     }
     ConductorRating {
@@ -379,33 +487,77 @@ fn startup_figures(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<
         .or_else(|| reg.quantity("load"))
         .map(|v| v.hi)
         .unwrap_or(0.0);
-    let full_gate = model.child(reg, BlockKind::Pass).and_then(|p| p.quantity("full_gate_current"));
+    let full_gate = model
+        .child(reg, BlockKind::Pass)
+        .and_then(|p| p.quantity("full_gate_current"));
     let c_u = q::Capacitance::new::<uom::si::capacitance::farad>(capacitance);
     let v_u = q::ElectricPotential::new::<uom::si::electric_potential::volt>(voltage);
     let amp = q::ElectricCurrent::new::<uom::si::electric_current::ampere>;
-    let (surge, surge_reason, bounded, charge_min) = if let Some(slew) = start.and_then(|s| s.quantity("slew")) {
-        let s = startup::SlewRate { dimension: std::marker::PhantomData, units: std::marker::PhantomData, value: slew.hi };
-        let surge = startup::ramp_surge(c_u, s, amp(load)).value;
-        let s_lo = startup::SlewRate { dimension: std::marker::PhantomData, units: std::marker::PhantomData, value: slew.lo };
-        let charge = startup::ramp_surge(c_u, s_lo, amp(load)).value;
-        (surge, "soft-start ramp C·dV/dt plus load".to_string(), true, Some(charge))
-    } else if let Some(l) = limits.first() {
-        let node = model.node(l.node);
-        match l.scheme {
-            Scheme::Replica => (l.window.hi, format!("top of the `{}` limit window", node.key()), true, Some(l.window.lo)),
-            Scheme::UndervoltageFixed => (l.window.hi, format!("the `{}` fixed current", node.key()), true, Some(l.window.lo)),
-        }
-    } else if let Some(fg) = full_gate {
-        (fg.hi, "the full-gate current at the strong corner".to_string(), false, Some(fg.lo))
-    } else {
-        return None;
-    };
+    let (surge, surge_reason, bounded, charge_min) =
+        if let Some(slew) = start.and_then(|s| s.quantity("slew")) {
+            let s = startup::SlewRate {
+                dimension: std::marker::PhantomData,
+                units: std::marker::PhantomData,
+                value: slew.hi,
+            };
+            let surge = startup::ramp_surge(c_u, s, amp(load)).value;
+            let s_lo = startup::SlewRate {
+                dimension: std::marker::PhantomData,
+                units: std::marker::PhantomData,
+                value: slew.lo,
+            };
+            let charge = startup::ramp_surge(c_u, s_lo, amp(load)).value;
+            (
+                surge,
+                "soft-start ramp C·dV/dt plus load".to_string(),
+                true,
+                Some(charge),
+            )
+        } else if let Some(l) = limits.first() {
+            let node = model.node(l.node);
+            match l.scheme {
+                Scheme::Replica => (
+                    l.window.hi,
+                    format!("top of the `{}` limit window", node.key()),
+                    true,
+                    Some(l.window.lo),
+                ),
+                Scheme::UndervoltageFixed => (
+                    l.window.hi,
+                    format!("the `{}` fixed current", node.key()),
+                    true,
+                    Some(l.window.lo),
+                ),
+            }
+        } else if let Some(fg) = full_gate {
+            (
+                fg.hi,
+                "the full-gate current at the strong corner".to_string(),
+                false,
+                Some(fg.lo),
+            )
+        } else {
+            return None;
+        };
     let (surge, surge_reason) = match full_gate {
-        Some(fg) if fg.hi < surge => (fg.hi, "the full-gate current at the strong corner".to_string()),
+        Some(fg) if fg.hi < surge => (
+            fg.hi,
+            "the full-gate current at the strong corner".to_string(),
+        ),
         _ => (surge, surge_reason),
     };
-    let time = charge_min.and_then(|i| startup::charge_time(c_u, v_u, amp(i), amp(load)).map(|t| t.value));
-    Some(Startup { capacitance, voltage, load, surge, surge_reason, bounded, charge_min, time })
+    let time =
+        charge_min.and_then(|i| startup::charge_time(c_u, v_u, amp(i), amp(load)).map(|t| t.value));
+    Some(Startup {
+        capacitance,
+        voltage,
+        load,
+        surge,
+        surge_reason,
+        bounded,
+        charge_min,
+        time,
+    })
 }
 
 fn short_figures(model: &Model, reg: &Node, worst: Option<&WorstCurrent>) -> Option<Short> {
@@ -418,8 +570,14 @@ fn short_figures(model: &Model, reg: &Node, worst: Option<&WorstCurrent>) -> Opt
     let fixed = model
         .children(reg, BlockKind::Limit)
         .filter(|l| l.choice("scheme") == Some("undervoltage_fixed"))
-        .find_map(|l| l.quantity("fixed_current").map(|v| (v.hi, format!("the `{}` fixed current", l.key()))));
-    let (current, reason) = match model.child(reg, BlockKind::Foldback).and_then(|f| f.quantity("current")) {
+        .find_map(|l| {
+            l.quantity("fixed_current")
+                .map(|v| (v.hi, format!("the `{}` fixed current", l.key())))
+        });
+    let (current, reason) = match model
+        .child(reg, BlockKind::Foldback)
+        .and_then(|f| f.quantity("current"))
+    {
         Some(fb) => (fb.hi, "the foldback current".to_string()),
         None => match fixed {
             Some(f) => f,
@@ -438,14 +596,22 @@ fn short_figures(model: &Model, reg: &Node, worst: Option<&WorstCurrent>) -> Opt
         p,
         q::ThermalResistance::new::<uom::si::thermal_resistance::kelvin_per_watt>(theta),
     );
-    Some(Short { current, reason, power: p.value, junction: tj.value })
+    Some(Short {
+        current,
+        reason,
+        power: p.value,
+        junction: tj.value,
+    })
 }
 
 /// Derives every figure for one regulator.
 pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
     let limits = limit_windows(model, reg, config);
     let worst = worst_current(model, reg, &limits);
-    let conductors = model.children(reg, BlockKind::Conductor).map(|c| conductor_rating(model, reg, c, config)).collect();
+    let conductors = model
+        .children(reg, BlockKind::Conductor)
+        .map(|c| conductor_rating(model, reg, c, config))
+        .collect();
     let startup = startup_figures(model, reg, &limits);
     let short = short_figures(model, reg, worst.as_ref());
     let load = reg.quantity("load");
@@ -453,7 +619,10 @@ pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
         regulator: reg.id,
         rated_load: load.map(|l| l.hi),
         load_unit: load.and_then(|l| l.unit.clone()),
-        margin: reg.quantity("margin").map(|m| m.nom).unwrap_or(config.margin),
+        margin: reg
+            .quantity("margin")
+            .map(|m| m.nom)
+            .unwrap_or(config.margin),
         limits,
         worst,
         conductors,
@@ -468,7 +637,9 @@ mod tests {
     use guardband_model::SourceId;
 
     fn tol(nom: f64, rel: f64, id: u32) -> Value {
-        Value::exact(QuantityKind::NONE, nom).with_tolerance(QuantityKind::NONE, rel, rel, SourceId(id)).unwrap()
+        Value::exact(QuantityKind::NONE, nom)
+            .with_tolerance(QuantityKind::NONE, rel, rel, SourceId(id))
+            .unwrap()
     }
 
     // Tolerance stack-up, worst case vs root-sum-square: three independent
@@ -477,7 +648,11 @@ mod tests {
     // comparison of the two methods (any tolerance-analysis text).
     #[test]
     fn rss_versus_worst_case_stack() {
-        let v = tol(1.0, 0.1, 0).add(&tol(1.0, 0.2, 1)).unwrap().add(&tol(1.0, 0.2, 2)).unwrap();
+        let v = tol(1.0, 0.1, 0)
+            .add(&tol(1.0, 0.2, 1))
+            .unwrap()
+            .add(&tol(1.0, 0.2, 2))
+            .unwrap();
         assert!((v.lo - 2.5).abs() < 1e-12 && (v.hi - 3.5).abs() < 1e-12);
         let s = statistical(&v, 3.0);
         assert!((s.hi - s.mean - 0.3).abs() < 1e-12);
@@ -493,7 +668,18 @@ mod tests {
             let reference = Value::exact(QuantityKind::CURRENT, 45e-6)
                 .with_tolerance(QuantityKind::NONE, resistor, resistor, SourceId(0))
                 .unwrap();
-            let m = Value { nom: 0.0, lo: -mismatch, hi: mismatch, terms: vec![guardband_model::Term { source: SourceId(1), low: -mismatch, high: mismatch }], kind: QuantityKind::NONE, unit: None };
+            let m = Value {
+                nom: 0.0,
+                lo: -mismatch,
+                hi: mismatch,
+                terms: vec![guardband_model::Term {
+                    source: SourceId(1),
+                    low: -mismatch,
+                    high: mismatch,
+                }],
+                kind: QuantityKind::NONE,
+                unit: None,
+            };
             let w = reference.mul(&one_plus(&m).unwrap()).unwrap();
             let spread = (w.hi - w.nom) / w.nom;
             assert!((0.30..=0.50).contains(&spread), "spread {spread}");
@@ -510,13 +696,22 @@ mod tests {
         let nominal = 1.5 * rated;
         for spread in [0.67, 1.0] {
             let top = nominal * (1.0 + spread);
-            assert!((2.5 * rated..=3.0 * rated + 1e-12).contains(&top), "top {top}");
+            assert!(
+                (2.5 * rated..=3.0 * rated + 1e-12).contains(&top),
+                "top {top}"
+            );
         }
     }
 
     #[test]
     fn escape_rate_from_normal_tail() {
-        let s = Statistical { mean: 1.0, sigma: 0.1, lo: 0.7, hi: 1.3, contributors: vec![] };
+        let s = Statistical {
+            mean: 1.0,
+            sigma: 0.1,
+            lo: 0.7,
+            hi: 1.3,
+            contributors: vec![],
+        };
         // Φ(-3) = 0.001349898 (standard normal table) → 1349.9 ppm.
         assert!((escape_ppm(&s, 0.7) - 1349.898).abs() < 0.1);
     }

@@ -22,9 +22,22 @@ use guardband_model::{Diagnostic, Model, Workspace};
 
 /// Runs every enabled rule and applies waivers. `diagnostics` holds what the
 /// model found already; the lint findings and waiver problems are appended.
-pub fn analyse(ws: &Workspace, model: &Model, config: &Config, mut diagnostics: Vec<Diagnostic>) -> Vec<Diagnostic> {
-    let derived = model.regulators().map(|r| derive(model, r, config)).collect();
-    let ctx = context::Context { ws, model, config, derived };
+pub fn analyse(
+    ws: &Workspace,
+    model: &Model,
+    config: &Config,
+    mut diagnostics: Vec<Diagnostic>,
+) -> Vec<Diagnostic> {
+    let derived = model
+        .regulators()
+        .map(|r| derive(model, r, config))
+        .collect();
+    let ctx = context::Context {
+        ws,
+        model,
+        config,
+        derived,
+    };
     let mut findings = Vec::new();
     for rule in registry() {
         let overridden = config.severities.get(rule.name).copied();

@@ -32,7 +32,11 @@ impl RuleInfo {
             .lines()
             .take_while(|l| l.starts_with("//!") || l.trim().is_empty())
             .filter(|l| l.starts_with("//!"))
-            .map(|l| l.trim_start_matches("//!").strip_prefix(' ').unwrap_or(l.trim_start_matches("//!")))
+            .map(|l| {
+                l.trim_start_matches("//!")
+                    .strip_prefix(' ')
+                    .unwrap_or(l.trim_start_matches("//!"))
+            })
             .collect::<Vec<_>>()
             .join("\n")
     }
@@ -40,7 +44,11 @@ impl RuleInfo {
     /// The full `guardband explain` text.
     pub fn explain(&self) -> String {
         let sev = self.default_severity.map(|s| s.as_str()).unwrap_or("off");
-        format!("{} (default: {sev})\n\n{}\n\n{CAUTION}", self.name, self.documentation().trim())
+        format!(
+            "{} (default: {sev})\n\n{}\n\n{CAUTION}",
+            self.name,
+            self.documentation().trim()
+        )
     }
 }
 
@@ -57,17 +65,72 @@ macro_rules! rule {
 }
 
 static RULES: &[RuleInfo] = &[
-    rule!(limit_within_load, "limit-within-load", Some(Severity::Error), "limit window's low edge at or below rated load plus margin"),
-    rule!(conductor_under_rated, "conductor-under-rated", Some(Severity::Error), "a conductor rated below the worst current that can flow through it"),
-    rule!(unlimited_surge, "unlimited-surge", Some(Severity::Error), "unlimited startup surge above a conductor rating or the supply surge limit"),
-    rule!(missing_fault_case, "missing-fault-case", Some(Severity::Warning), "an off-chip pin, limit or off-chip capacitor without its fault case"),
-    rule!(limit_loop_analysis, "limit-loop-analysis", Some(Severity::Error), "a sensed limit without a stability analysis set up to limit"),
-    rule!(clamp_too_weak, "clamp-too-weak", Some(Severity::Error), "clamp drive not above the amplifier's output drive"),
-    rule!(short_overheat, "short-overheat", Some(Severity::Error), "junction above its limit in a sustained short without thermal shutdown"),
-    rule!(slow_start, "slow-start", Some(Severity::Error), "startup slower than required, or unable to start against the load"),
-    rule!(trip_uncharacterised, "trip-uncharacterised", Some(Severity::Warning), "undervoltage-triggered limit without a characterised trip current"),
-    rule!(tolerance_missing, "tolerance-missing", Some(Severity::Info), "an exact value feeding a worst-case derivation"),
-    rule!(expectation_violated, "expectation-violated", Some(Severity::Error), "a fault case's expectation contradicted by the derived worst case"),
+    rule!(
+        limit_within_load,
+        "limit-within-load",
+        Some(Severity::Error),
+        "limit window's low edge at or below rated load plus margin"
+    ),
+    rule!(
+        conductor_under_rated,
+        "conductor-under-rated",
+        Some(Severity::Error),
+        "a conductor rated below the worst current that can flow through it"
+    ),
+    rule!(
+        unlimited_surge,
+        "unlimited-surge",
+        Some(Severity::Error),
+        "unlimited startup surge above a conductor rating or the supply surge limit"
+    ),
+    rule!(
+        missing_fault_case,
+        "missing-fault-case",
+        Some(Severity::Warning),
+        "an off-chip pin, limit or off-chip capacitor without its fault case"
+    ),
+    rule!(
+        limit_loop_analysis,
+        "limit-loop-analysis",
+        Some(Severity::Error),
+        "a sensed limit without a stability analysis set up to limit"
+    ),
+    rule!(
+        clamp_too_weak,
+        "clamp-too-weak",
+        Some(Severity::Error),
+        "clamp drive not above the amplifier's output drive"
+    ),
+    rule!(
+        short_overheat,
+        "short-overheat",
+        Some(Severity::Error),
+        "junction above its limit in a sustained short without thermal shutdown"
+    ),
+    rule!(
+        slow_start,
+        "slow-start",
+        Some(Severity::Error),
+        "startup slower than required, or unable to start against the load"
+    ),
+    rule!(
+        trip_uncharacterised,
+        "trip-uncharacterised",
+        Some(Severity::Warning),
+        "undervoltage-triggered limit without a characterised trip current"
+    ),
+    rule!(
+        tolerance_missing,
+        "tolerance-missing",
+        Some(Severity::Info),
+        "an exact value feeding a worst-case derivation"
+    ),
+    rule!(
+        expectation_violated,
+        "expectation-violated",
+        Some(Severity::Error),
+        "a fault case's expectation contradicted by the derived worst case"
+    ),
 ];
 
 /// Every lint rule, in documentation order.
@@ -84,7 +147,13 @@ mod tests {
         assert_eq!(registry().len(), 11);
         for r in registry() {
             let doc = r.documentation();
-            for section in ["## What it flags", "## Why it matters", "## Failing example", "## Passing example", "## How to fix"] {
+            for section in [
+                "## What it flags",
+                "## Why it matters",
+                "## Failing example",
+                "## Passing example",
+                "## How to fix",
+            ] {
                 assert!(doc.contains(section), "{} lacks {section}", r.name);
             }
             assert!(r.explain().contains("does not replace sign-off"));

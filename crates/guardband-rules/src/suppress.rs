@@ -26,7 +26,9 @@ pub fn collect(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Vec<Waiver>
     for file in &ws.files {
         for c in &file.parse.file.comments {
             let body = c.text.trim_start_matches('/').trim();
-            let Some(rest) = body.strip_prefix(MARKER) else { continue };
+            let Some(rest) = body.strip_prefix(MARKER) else {
+                continue;
+            };
             if !rest.starts_with([' ', '\t']) {
                 continue;
             }
@@ -36,9 +38,14 @@ pub fn collect(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Vec<Waiver>
             };
             if reason.is_empty() {
                 diagnostics.push(
-                    Diagnostic::error("invalid-suppression", file.id, c.span.clone(), "a waiver needs a reason")
-                        .primary("no reason given")
-                        .help("write `// waive RULE: why this is acceptable`"),
+                    Diagnostic::error(
+                        "invalid-suppression",
+                        file.id,
+                        c.span.clone(),
+                        "a waiver needs a reason",
+                    )
+                    .primary("no reason given")
+                    .help("write `// waive RULE: why this is acceptable`"),
                 );
                 continue;
             }
@@ -51,11 +58,19 @@ pub fn collect(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Vec<Waiver>
                     ok = false;
                     let help = did_you_mean(rule, names.iter().copied())
                         .map(|s| format!("did you mean `{s}`?"))
-                        .unwrap_or_else(|| "only lint rules can be waived; `guardband explain --list` shows them".into());
+                        .unwrap_or_else(|| {
+                            "only lint rules can be waived; `guardband explain --list` shows them"
+                                .into()
+                        });
                     diagnostics.push(
-                        Diagnostic::error("invalid-suppression", file.id, c.span.clone(), format!("`{rule}` is not a lint rule"))
-                            .primary("unknown rule")
-                            .help(help),
+                        Diagnostic::error(
+                            "invalid-suppression",
+                            file.id,
+                            c.span.clone(),
+                            format!("`{rule}` is not a lint rule"),
+                        )
+                        .primary("unknown rule")
+                        .help(help),
                     );
                 }
             }
@@ -65,7 +80,14 @@ pub fn collect(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Vec<Waiver>
             let pos = file.line_index.line_col(c.span.start);
             let line_start = c.span.start - pos.utf8 as usize;
             let own_line = file.text[line_start..c.span.start].trim().is_empty();
-            out.push(Waiver { file: file.id, span: c.span.clone(), line: pos.line, own_line, rules, used: false });
+            out.push(Waiver {
+                file: file.id,
+                span: c.span.clone(),
+                line: pos.line,
+                own_line,
+                rules,
+                used: false,
+            });
         }
     }
     out
@@ -99,10 +121,15 @@ pub fn unused(waivers: &[Waiver]) -> Vec<Diagnostic> {
         .iter()
         .filter(|w| !w.used)
         .map(|w| {
-            Diagnostic::error("unused-suppression", w.file, w.span.clone(), format!("this waiver of `{}` waives nothing", w.rules.join(", ")))
-                .with_severity(Severity::Warning)
-                .primary("nothing to waive here")
-                .help("remove it, or move it onto (or just above) the line of the finding")
+            Diagnostic::error(
+                "unused-suppression",
+                w.file,
+                w.span.clone(),
+                format!("this waiver of `{}` waives nothing", w.rules.join(", ")),
+            )
+            .with_severity(Severity::Warning)
+            .primary("nothing to waive here")
+            .help("remove it, or move it onto (or just above) the line of the finding")
         })
         .collect()
 }

@@ -160,7 +160,10 @@ fn lex_number<'src>(lex: &mut logos::Lexer<'src, Token<'src>>) -> NumberToken {
     let after_gap = &rest[gap..];
     let len = unit_len(after_gap);
     if len == 0 {
-        return NumberToken { number_len, unit_start: None };
+        return NumberToken {
+            number_len,
+            unit_start: None,
+        };
     }
     let word = &after_gap[..len];
     let follow = after_gap[len..].trim_start_matches([' ', '\t']);
@@ -169,7 +172,10 @@ fn lex_number<'src>(lex: &mut logos::Lexer<'src, Token<'src>>) -> NumberToken {
         || follow.starts_with('<')
         || follow.starts_with('>');
     if starts_field || matches!(word, "true" | "false" | "use") {
-        return NumberToken { number_len, unit_start: None };
+        return NumberToken {
+            number_len,
+            unit_start: None,
+        };
     }
     lex.bump(gap + len);
     NumberToken {
@@ -224,7 +230,10 @@ mod tests {
     fn numbers_take_units_on_the_same_line() {
         assert_eq!(kinds("2.2 uF"), vec!["a number:2.2 uF"]);
         assert_eq!(kinds("30 mA/um^2"), vec!["a number:30 mA/um^2"]);
-        assert_eq!(kinds("5000\nreference"), vec!["a number:5000", "`reference`:reference"]);
+        assert_eq!(
+            kinds("5000\nreference"),
+            vec!["a number:5000", "`reference`:reference"]
+        );
         assert_eq!(
             kinds("5000 threshold = x"),
             vec!["a number:5000", "`threshold`:threshold", "`=`:=", "`x`:x"]
@@ -233,7 +242,10 @@ mod tests {
         assert_eq!(kinds("1e-3 A"), vec!["a number:1e-3 A"]);
         assert_eq!(kinds("8 %/K"), vec!["a number:8 %/K"]);
         assert_eq!(kinds("2 m^-2"), vec!["a number:2 m^-2"]);
-        assert_eq!(kinds("2 m^x"), vec!["a number:2 m", "an unexpected character:^", "`x`:x"]);
+        assert_eq!(
+            kinds("2 m^x"),
+            vec!["a number:2 m", "an unexpected character:^", "`x`:x"]
+        );
     }
 
     #[test]

@@ -103,7 +103,15 @@ mod tests {
     #[test]
     fn crlf_and_clamping() {
         let idx = LineIndex::new("ab\r\ncd");
-        assert_eq!(idx.line_col(2), LineCol { line: 0, utf8: 2, utf16: 2, chars: 2 });
+        assert_eq!(
+            idx.line_col(2),
+            LineCol {
+                line: 0,
+                utf8: 2,
+                utf16: 2,
+                chars: 2
+            }
+        );
         assert_eq!(idx.line_col(4).line, 1);
         assert_eq!(idx.line_col(999).line, 1);
         assert_eq!(idx.offset_utf16(0, 50), 2);

@@ -5,9 +5,9 @@
 //! beyond [`MAX_NESTING`] is cut out before parsing so that the recursive
 //! descent cannot exhaust the stack.
 
+use crate::Span;
 use crate::ast::*;
 use crate::lexer::{Comment, NumberToken, Token, lex};
-use crate::Span;
 use chumsky::input::ValueInput;
 use chumsky::prelude::*;
 
@@ -24,12 +24,22 @@ pub const MAX_CHAIN: usize = 64;
 /// Builds a left-nested chain `a op b op c`; an error (span, message) if it is too long.
 fn chain((first, rest): (Expr, Vec<(BinaryOp, Expr)>)) -> Result<Expr, (Span, String)> {
     if rest.len() >= MAX_CHAIN {
-        let span = first.span.start..rest.last().map(|(_, x)| x.span.end).unwrap_or(first.span.end);
-        return Err((span, format!("more than {MAX_CHAIN} operands in one expression; split it into named fields")));
+        let span = first.span.start
+            ..rest
+                .last()
+                .map(|(_, x)| x.span.end)
+                .unwrap_or(first.span.end);
+        return Err((
+            span,
+            format!("more than {MAX_CHAIN} operands in one expression; split it into named fields"),
+        ));
     }
     Ok(rest.into_iter().fold(first, |a, (op, b)| {
         let span = a.span.start..b.span.end;
-        Expr { kind: ExprKind::Binary(op, Box::new(a), Box::new(b)), span }
+        Expr {
+            kind: ExprKind::Binary(op, Box::new(a), Box::new(b)),
+            span,
+        }
     }))
 }
 
@@ -204,11 +214,17 @@ fn number_expr(source: &str, token: NumberToken, span: SimpleSpan) -> Expr {
 fn negate(inner: Expr, span: Span) -> Expr {
     match inner.kind {
         ExprKind::Number { value, unit } => Expr {
-            kind: ExprKind::Number { value: -value, unit },
+            kind: ExprKind::Number {
+                value: -value,
+                unit,
+            },
             span,
         },
         kind => Expr {
-            kind: ExprKind::Neg(Box::new(Expr { kind, span: inner.span })),
+            kind: ExprKind::Neg(Box::new(Expr {
+                kind,
+                span: inner.span,
+            })),
             span,
         },
     }
@@ -220,8 +236,9 @@ fn file_parser<'t, 's: 't, I>(
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
 {
-    let ident = select! { Token::Ident(s) = e => Ident { text: s.to_string(), span: range(e.span()) } }
-        .labelled("a name");
+    let ident =
+        select! { Token::Ident(s) = e => Ident { text: s.to_string(), span: range(e.span()) } }
+            .labelled("a name");
 
     let number = select! { Token::Number(n) = e => (n, e.span()) }
         .map(move |(n, span)| number_expr(source, n, span))
@@ -229,9 +246,12 @@ where
 
     let expr = recursive(|expr| {
         let literal = number
-            .clone()
-            .or(select! { Token::True => true, Token::False => false }
-                .map_with(|b, e| Expr { kind: ExprKind::Bool(b), span: range(e.span()) }))
+            .or(
+                select! { Token::True => true, Token::False => false }.map_with(|b, e| Expr {
+                    kind: ExprKind::Bool(b),
+                    span: range(e.span()),
+                }),
+            )
             .or(select! { Token::Str(s) = e => Expr {
                 kind: ExprKind::Str(s.trim_matches('"').to_string()),
                 span: range(e.span()),
@@ -245,7 +265,6 @@ where
             .delimited_by(just(Token::LParen), just(Token::RParen));
 
         let path_or_call = ident
-            .clone()
             .separated_by(just(Token::Dot))
             .at_least(1)
             .collect::<Vec<Ident>>()
@@ -253,27 +272,47 @@ where
             .try_map_with(|(path, args), e| {
                 let span = range(e.span());
                 match args {
-                    None => Ok(Expr { kind: ExprKind::Path(path), span }),
+                    None => Ok(Expr {
+                        kind: ExprKind::Path(path),
+                        span,
+                    }),
                     Some(args) if path.len() == 1 => {
                         let name = path.into_iter().next().expect("at least one segment");
-                        Ok(Expr { kind: ExprKind::Call(name, args), span })
+                        Ok(Expr {
+                            kind: ExprKind::Call(name, args),
+                            span,
+                        })
                     }
-                    Some(_) => Err(Rich::custom(e.span(), "only plain function names can be called")),
+                    Some(_) => Err(Rich::custom(
+                        e.span(),
+                        "only plain function names can be called",
+                    )),
                 }
             });
 
         let paren = expr
             .clone()
             .delimited_by(just(Token::LParen), just(Token::RParen))
-            .map_with(|inner, e| Expr { kind: ExprKind::Paren(Box::new(inner)), span: range(e.span()) })
+            .map_with(|inner, e| Expr {
+                kind: ExprKind::Paren(Box::new(inner)),
+                span: range(e.span()),
+            })
             .recover_with(via_parser(nested_delimiters(
                 Token::LParen,
                 Token::RParen,
                 [(Token::LBrace, Token::RBrace)],
-                |span| Expr { kind: ExprKind::Error, span: range(span) },
+                |span| Expr {
+                    kind: ExprKind::Error,
+                    span: range(span),
+                },
             )));
 
-        let atom = literal.or(paren).or(path_or_call).labelled("a value");
+        // Boxing erases the combinator types: it keeps compile and lint times reasonable.
+        let atom = literal
+            .or(paren)
+            .or(path_or_call)
+            .labelled("a value")
+            .boxed();
 
         let bare_tolerance = just(Token::PlusMinus)
             .ignore_then(atom.clone())
@@ -287,7 +326,7 @@ where
                 span: range(e.span()),
             });
 
-        let primary = bare_tolerance.or(atom.clone());
+        let primary = bare_tolerance.or(atom.clone()).boxed();
 
         let unary = just(Token::Minus)
             .map_with(|_, e| range(e.span()))
@@ -296,8 +335,14 @@ where
             .then(primary)
             .validate(|(minuses, inner), e, emitter| {
                 if minuses.len() > MAX_CHAIN {
-                    emitter.emit(Rich::custom(e.span(), format!("more than {MAX_CHAIN} signs in a row")));
-                    return Expr { kind: ExprKind::Error, span: range(e.span()) };
+                    emitter.emit(Rich::custom(
+                        e.span(),
+                        format!("more than {MAX_CHAIN} signs in a row"),
+                    ));
+                    return Expr {
+                        kind: ExprKind::Error,
+                        span: range(e.span()),
+                    };
                 }
                 minuses.into_iter().rev().fold(inner, |inner, minus_span| {
                     let span = minus_span.start..inner.span.end;
@@ -309,12 +354,15 @@ where
         let signed = |sign: Token<'s>| {
             just(sign)
                 .map_with(|_, e| range(e.span()))
-                .then(number.clone())
+                .then(number)
                 .try_map(|(sign_span, n), span| {
                     if sign_span.end == n.span.start {
                         Ok(n)
                     } else {
-                        Err(Rich::custom(span, "asymmetric tolerance sign must touch its number"))
+                        Err(Rich::custom(
+                            span,
+                            "asymmetric tolerance sign must touch its number",
+                        ))
                     }
                 })
         };
@@ -338,29 +386,42 @@ where
                     },
                     span: range(e.span()),
                 },
-            });
+            })
+            .boxed();
 
-        let product_op = just(Token::Star).to(BinaryOp::Mul).or(just(Token::Slash).to(BinaryOp::Div));
+        let product_op = just(Token::Star)
+            .to(BinaryOp::Mul)
+            .or(just(Token::Slash).to(BinaryOp::Div));
         let product = toleranced
             .clone()
             .then(product_op.then(toleranced).repeated().collect::<Vec<_>>())
             .validate(|parts, _, emitter| {
                 chain(parts).unwrap_or_else(|(span, msg)| {
                     emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
-                    Expr { kind: ExprKind::Error, span }
+                    Expr {
+                        kind: ExprKind::Error,
+                        span,
+                    }
                 })
-            });
+            })
+            .boxed();
 
-        let sum_op = just(Token::Plus).to(BinaryOp::Add).or(just(Token::Minus).to(BinaryOp::Sub));
+        let sum_op = just(Token::Plus)
+            .to(BinaryOp::Add)
+            .or(just(Token::Minus).to(BinaryOp::Sub));
         let sum = product
             .clone()
             .then(sum_op.then(product).repeated().collect::<Vec<_>>())
             .validate(|parts, _, emitter| {
                 chain(parts).unwrap_or_else(|(span, msg)| {
                     emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
-                    Expr { kind: ExprKind::Error, span }
+                    Expr {
+                        kind: ExprKind::Error,
+                        span,
+                    }
                 })
-            });
+            })
+            .boxed();
 
         sum.clone()
             .then(just(Token::DotDot).ignore_then(sum).or_not())
@@ -385,17 +446,19 @@ where
 
     // What starts a member: a name, an optional second name, then `=`, a relation or `{`.
     let member_start = ident
-        .clone()
-        .then(ident.clone().or_not())
-        .then(relation.clone().ignored().or(just(Token::LBrace).ignored()))
+        .then(ident.or_not())
+        .then(relation.ignored().or(just(Token::LBrace).ignored()))
         .ignored();
 
     // A value that failed to parse: swallow up to the next member or `}`.
     let bad_value = any()
-        .and_is(member_start.clone().not())
+        .and_is(member_start.not())
         .and_is(just(Token::RBrace).not())
         .repeated()
-        .map_with(|_, e| Expr { kind: ExprKind::Error, span: range(e.span()) });
+        .map_with(|_, e| Expr {
+            kind: ExprKind::Error,
+            span: range(e.span()),
+        });
 
     // Tokens that start no member: one error for the whole run, then parsing goes on.
     let junk_member = any()
@@ -403,7 +466,7 @@ where
         .map_with(move |_, e| token_text(source, e.span()))
         .then_ignore(
             any()
-                .and_is(member_start.clone().not())
+                .and_is(member_start.not())
                 .and_is(just(Token::RBrace).not())
                 .repeated(),
         )
@@ -433,8 +496,7 @@ where
         }
 
         ident
-            .clone()
-            .then(ident.clone().or_not())
+            .then(ident.or_not())
             .then(
                 relation
                     .then(expr.clone().recover_with(via_parser(bad_value)))
@@ -458,6 +520,7 @@ where
             })
             .labelled("a field")
             .or(junk_member)
+            .boxed()
     });
 
     let block_body = member
@@ -481,17 +544,23 @@ where
             })
         });
 
-    let block_item = ident
-        .clone()
-        .then(ident.or_not())
-        .then(block_body)
-        .map_with(|((keyword, name), members), e| {
-            Item::Block(Block { keyword, name, members, span: range(e.span()) })
-        });
+    let block_item =
+        ident
+            .then(ident.or_not())
+            .then(block_body)
+            .map_with(|((keyword, name), members), e| {
+                Item::Block(Block {
+                    keyword,
+                    name,
+                    members,
+                    span: range(e.span()),
+                })
+            });
 
-    let item_start = just(Token::Use)
-        .ignored()
-        .or(ident.clone().then(ident.clone().or_not()).then(just(Token::LBrace)).ignored());
+    let item_start = just(Token::Use).ignored().or(ident
+        .then(ident.or_not())
+        .then(just(Token::LBrace))
+        .ignored());
     let junk_item = any()
         .map_with(move |_, e| token_text(source, e.span()))
         .then_ignore(any().and_is(item_start.not()).repeated())
@@ -536,7 +605,9 @@ mod tests {
         let src = "regulator r {\n supply = 3.0 V .. 4.2 V\n output = 2.8 V ± 1.5 %\n pin vout { off_chip = true capacitance = 2.2 uF ± 20 % }\n}";
         let p = parse(src);
         assert!(p.errors.is_empty(), "{:?}", p.errors);
-        let Item::Block(b) = &p.file.items[0] else { panic!() };
+        let Item::Block(b) = &p.file.items[0] else {
+            panic!()
+        };
         assert_eq!(b.keyword.text, "regulator");
         assert_eq!(b.name.as_ref().unwrap().text, "r");
         assert_eq!(b.members.len(), 3);
@@ -545,23 +616,42 @@ mod tests {
     #[test]
     fn minus_folds_into_literals() {
         let f = fields("r x { ambient = -20 °C .. 70 °C }");
-        let ExprKind::Range(lo, _) = &f[0].value.kind else { panic!() };
+        let ExprKind::Range(lo, _) = &f[0].value.kind else {
+            panic!()
+        };
         assert!(matches!(lo.kind, ExprKind::Number { value, .. } if value == -20.0));
     }
 
     #[test]
     fn asymmetric_tolerance_needs_touching_signs() {
         let f = fields("r x { a = 1 A +10 % -20 %\n b = c + 10 % - 20 % }");
-        assert!(matches!(f[0].value.kind, ExprKind::Tolerance { symmetric: false, .. }));
-        assert!(matches!(f[1].value.kind, ExprKind::Binary(BinaryOp::Sub, _, _)));
+        assert!(matches!(
+            f[0].value.kind,
+            ExprKind::Tolerance {
+                symmetric: false,
+                ..
+            }
+        ));
+        assert!(matches!(
+            f[1].value.kind,
+            ExprKind::Binary(BinaryOp::Sub, _, _)
+        ));
     }
 
     #[test]
     fn precedence_and_paths() {
         let f = fields("r x { t = ratio * reference + 1 mA\n u = min(a.b.max, 2 A)\n m = ± 8 % }");
-        assert!(matches!(f[0].value.kind, ExprKind::Binary(BinaryOp::Add, _, _)));
-        assert!(matches!(&f[1].value.kind, ExprKind::Call(n, args) if n.text == "min" && args.len() == 2));
-        assert!(matches!(f[2].value.kind, ExprKind::Tolerance { base: None, .. }));
+        assert!(matches!(
+            f[0].value.kind,
+            ExprKind::Binary(BinaryOp::Add, _, _)
+        ));
+        assert!(
+            matches!(&f[1].value.kind, ExprKind::Call(n, args) if n.text == "min" && args.len() == 2)
+        );
+        assert!(matches!(
+            f[2].value.kind,
+            ExprKind::Tolerance { base: None, .. }
+        ));
     }
 
     #[test]
@@ -574,7 +664,8 @@ mod tests {
 
     #[test]
     fn recovers_and_reports_every_error() {
-        let src = "regulator a {\n supply = \n output = 2 V\n load = * 3\n}\nregulator b { x = 1 V }";
+        let src =
+            "regulator a {\n supply = \n output = 2 V\n load = * 3\n}\nregulator b { x = 1 V }";
         let p = parse(src);
         assert!(p.errors.len() >= 2, "{:?}", p.errors);
         assert_eq!(p.file.items.len(), 2);
@@ -586,8 +677,16 @@ mod tests {
     #[test]
     fn deep_nesting_is_cut_not_overflowed() {
         let depth = 10_000;
-        let src = format!("regulator r {{ x = {}1{} }}", "(".repeat(depth), ")".repeat(depth));
+        let src = format!(
+            "regulator r {{ x = {}1{} }}",
+            "(".repeat(depth),
+            ")".repeat(depth)
+        );
         let p = parse(&src);
-        assert!(p.errors.iter().any(|e| e.message.contains("nesting deeper")));
+        assert!(
+            p.errors
+                .iter()
+                .any(|e| e.message.contains("nesting deeper"))
+        );
     }
 }

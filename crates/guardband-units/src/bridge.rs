@@ -37,14 +37,38 @@ use uom::si::{
     temperature_interval, thermal_resistance, thermodynamic_temperature, time,
 };
 
-bridge!(q::ElectricCurrent, QuantityKind::CURRENT, electric_current::ampere);
-bridge!(q::ElectricPotential, QuantityKind::VOLTAGE, electric_potential::volt);
+bridge!(
+    q::ElectricCurrent,
+    QuantityKind::CURRENT,
+    electric_current::ampere
+);
+bridge!(
+    q::ElectricPotential,
+    QuantityKind::VOLTAGE,
+    electric_potential::volt
+);
 bridge!(q::Power, QuantityKind::of(Dimension::POWER), power::watt);
-bridge!(q::Energy, QuantityKind::of(Dimension::ENERGY), energy::joule);
-bridge!(q::Length, QuantityKind::of(Dimension::LENGTH), length::meter);
-bridge!(q::Area, QuantityKind::of(Dimension::AREA), area::square_meter);
+bridge!(
+    q::Energy,
+    QuantityKind::of(Dimension::ENERGY),
+    energy::joule
+);
+bridge!(
+    q::Length,
+    QuantityKind::of(Dimension::LENGTH),
+    length::meter
+);
+bridge!(
+    q::Area,
+    QuantityKind::of(Dimension::AREA),
+    area::square_meter
+);
 bridge!(q::Time, QuantityKind::of(Dimension::TIME), time::second);
-bridge!(q::Capacitance, QuantityKind::of(Dimension::CAPACITANCE), capacitance::farad);
+bridge!(
+    q::Capacitance,
+    QuantityKind::of(Dimension::CAPACITANCE),
+    capacitance::farad
+);
 bridge!(q::Ratio, QuantityKind::NONE, ratio::ratio);
 bridge!(q::Angle, QuantityKind::of(Dimension::ANGLE), angle::radian);
 bridge!(
@@ -116,7 +140,10 @@ mod tests {
         assert!(close(l.get::<length::mil>(), 3.0));
         let (v, k) = via_table(25.0, "°C");
         let t: ThermodynamicTemperature = to_uom(v, k).unwrap();
-        assert!(close(t.get::<thermodynamic_temperature::degree_celsius>(), 25.0));
+        assert!(close(
+            t.get::<thermodynamic_temperature::degree_celsius>(),
+            25.0
+        ));
         let (v, k) = via_table(2.0, "h");
         let d: Time = to_uom(v, k).unwrap();
         assert!(close(d.get::<time::hour>(), 2.0));

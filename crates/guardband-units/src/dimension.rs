@@ -101,7 +101,7 @@ impl Dimension {
     }
 
     /// Product of two dimensions (exponents add). Saturates instead of overflowing.
-    pub fn mul(self, other: Dimension) -> Dimension {
+    pub fn times(self, other: Dimension) -> Dimension {
         let mut out = [0i8; 9];
         for (i, slot) in out.iter_mut().enumerate() {
             *slot = self.0[i].saturating_add(other.0[i]);
@@ -110,8 +110,8 @@ impl Dimension {
     }
 
     /// Quotient of two dimensions (exponents subtract).
-    pub fn div(self, other: Dimension) -> Dimension {
-        self.mul(other.powi(-1))
+    pub fn per(self, other: Dimension) -> Dimension {
+        self.times(other.powi(-1))
     }
 
     /// Integer power of a dimension.
@@ -168,15 +168,21 @@ mod tests {
 
     #[test]
     fn derived_dimensions_compose() {
-        assert_eq!(Dimension::POWER.div(Dimension::CURRENT), Dimension::VOLTAGE);
-        assert_eq!(Dimension::VOLTAGE.div(Dimension::CURRENT), Dimension::RESISTANCE);
-        assert_eq!(Dimension::RESISTANCE.mul(Dimension::LENGTH), Dimension::RESISTIVITY);
+        assert_eq!(Dimension::POWER.per(Dimension::CURRENT), Dimension::VOLTAGE);
         assert_eq!(
-            Dimension::CHARGE.div(Dimension::VOLTAGE),
+            Dimension::VOLTAGE.per(Dimension::CURRENT),
+            Dimension::RESISTANCE
+        );
+        assert_eq!(
+            Dimension::RESISTANCE.times(Dimension::LENGTH),
+            Dimension::RESISTIVITY
+        );
+        assert_eq!(
+            Dimension::CHARGE.per(Dimension::VOLTAGE),
             Dimension::CAPACITANCE
         );
         assert_eq!(
-            Dimension::TEMPERATURE.div(Dimension::POWER),
+            Dimension::TEMPERATURE.per(Dimension::POWER),
             Dimension::THERMAL_RESISTANCE
         );
         assert_eq!(Dimension::AREA.sqrt(), Some(Dimension::LENGTH));

@@ -127,7 +127,11 @@ const NAMED: &[(Dimension, &str, &str)] = &[
     (Dimension::CURRENT_DENSITY, "a current density", "A/m^2"),
     (Dimension::CURRENT_PER_LENGTH, "a current per width", "A/m"),
     (Dimension::THERMAL_RESISTANCE, "a thermal resistance", "K/W"),
-    (Dimension::PER_TEMPERATURE, "a temperature coefficient", "1/K"),
+    (
+        Dimension::PER_TEMPERATURE,
+        "a temperature coefficient",
+        "1/K",
+    ),
     (Dimension::SLEW_RATE, "a slew rate", "V/s"),
     (Dimension::ANGLE, "an angle", "rad"),
     (Dimension::LEVEL, "a level", "dB"),

@@ -34,7 +34,10 @@ impl ParsedUnit {
 #[derive(Debug, Clone, PartialEq)]
 pub enum UnitError {
     /// An atom that is not in the table; carries close spellings that are.
-    Unknown { atom: String, suggestions: Vec<String> },
+    Unknown {
+        atom: String,
+        suggestions: Vec<String>,
+    },
     /// A malformed spelling such as `A//m` or `m^x`.
     Malformed(String),
 }
@@ -77,7 +80,7 @@ pub fn parse_unit(text: &str) -> Result<ParsedUnit, UnitError> {
         })?;
         let power = if divide { -power } else { power };
         factor *= (def.factor * prefix).powi(power);
-        dim = dim.mul(def.dim.powi(power));
+        dim = dim.times(def.dim.powi(power));
         atoms += 1;
         if atoms == 1 && power == 1 && !divide {
             lone_temp = Some(def.temp);
@@ -111,10 +114,14 @@ fn split_power<'a>(piece: &'a str, whole: &str) -> Result<(&'a str, i32), UnitEr
                 UnitError::Malformed(format!("`{whole}`: the power after `^` must be an integer"))
             })?;
             if name.is_empty() {
-                return Err(UnitError::Malformed(format!("`{whole}`: `^` needs a unit before it")));
+                return Err(UnitError::Malformed(format!(
+                    "`{whole}`: `^` needs a unit before it"
+                )));
             }
             if !(-12..=12).contains(&power) {
-                return Err(UnitError::Malformed(format!("`{whole}`: power {power} is out of range")));
+                return Err(UnitError::Malformed(format!(
+                    "`{whole}`: power {power} is out of range"
+                )));
             }
             Ok((name, power))
         }
@@ -139,7 +146,10 @@ fn suggest(atom: &str) -> Vec<String> {
     for p in crate::table::PREFIXES {
         if let Some(rest) = atom.strip_prefix(p.symbol) {
             for u in UNITS.iter().filter(|u| u.prefixable) {
-                if !rest.is_empty() && edit_distance(rest, u.symbol) == 1 && rest.starts_with(u.symbol) {
+                if !rest.is_empty()
+                    && edit_distance(rest, u.symbol) == 1
+                    && rest.starts_with(u.symbol)
+                {
                     found.push((1, format!("{}{}", p.symbol, u.symbol)));
                 }
             }
@@ -219,8 +229,14 @@ mod tests {
         assert_eq!(th_c.offset, 0.0);
         assert_eq!(parse_unit("V/us").unwrap().kind.dim, Dimension::SLEW_RATE);
         assert!(close(parse_unit("V/us").unwrap().factor, 1e6));
-        assert_eq!(parse_unit("µΩ·cm").unwrap().kind.dim, Dimension::RESISTIVITY);
-        assert_eq!(parse_unit("mA/um").unwrap().kind.dim, Dimension::CURRENT_PER_LENGTH);
+        assert_eq!(
+            parse_unit("µΩ·cm").unwrap().kind.dim,
+            Dimension::RESISTIVITY
+        );
+        assert_eq!(
+            parse_unit("mA/um").unwrap().kind.dim,
+            Dimension::CURRENT_PER_LENGTH
+        );
         assert!(close(parse_unit("%/K").unwrap().factor, 1e-2));
     }
 
@@ -232,15 +248,21 @@ mod tests {
         assert!(matches!(parse_unit("m^99"), Err(UnitError::Malformed(_))));
         assert!(matches!(parse_unit("k%"), Err(UnitError::Unknown { .. })));
         match parse_unit("mAA") {
-            Err(UnitError::Unknown { suggestions, .. }) => assert_eq!(suggestions.first().map(String::as_str), Some("mA")),
+            Err(UnitError::Unknown { suggestions, .. }) => {
+                assert_eq!(suggestions.first().map(String::as_str), Some("mA"))
+            }
             other => panic!("unexpected {other:?}"),
         }
         match parse_unit("Volt") {
-            Err(UnitError::Unknown { suggestions, .. }) => assert!(suggestions.contains(&"V".to_string())),
+            Err(UnitError::Unknown { suggestions, .. }) => {
+                assert!(suggestions.contains(&"V".to_string()))
+            }
             other => panic!("unexpected {other:?}"),
         }
         match parse_unit("ohms") {
-            Err(UnitError::Unknown { suggestions, .. }) => assert!(suggestions.contains(&"ohm".to_string())),
+            Err(UnitError::Unknown { suggestions, .. }) => {
+                assert!(suggestions.contains(&"ohm".to_string()))
+            }
             other => panic!("unexpected {other:?}"),
         }
     }

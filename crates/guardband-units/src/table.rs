@@ -56,7 +56,13 @@ const fn celsius(symbol: &'static str) -> UnitDef {
 pub const UNITS: &[UnitDef] = &[
     unit("m", "metre", 1.0, Dimension::LENGTH, true),
     // NIST SP 811 B.8: 1 mil = 2.54E-05 m (exact); 1 in = 2.54E-02 m (exact).
-    unit("mil", "mil (thousandth of an inch)", 2.54e-5, Dimension::LENGTH, false),
+    unit(
+        "mil",
+        "mil (thousandth of an inch)",
+        2.54e-5,
+        Dimension::LENGTH,
+        false,
+    ),
     unit("inch", "inch", 0.0254, Dimension::LENGTH, false),
     unit("g", "gram", 1e-3, Dimension::MASS, true),
     unit("s", "second", 1.0, Dimension::TIME, true),
@@ -70,7 +76,13 @@ pub const UNITS: &[UnitDef] = &[
     unit("W", "watt", 1.0, Dimension::POWER, true),
     unit("J", "joule", 1.0, Dimension::ENERGY, true),
     // CODATA 2018: 1 eV = 1.602176634E-19 J (exact since the 2019 SI).
-    unit("eV", "electronvolt", 1.602_176_634e-19, Dimension::ENERGY, true),
+    unit(
+        "eV",
+        "electronvolt",
+        1.602_176_634e-19,
+        Dimension::ENERGY,
+        true,
+    ),
     unit("C", "coulomb", 1.0, Dimension::CHARGE, true),
     unit("F", "farad", 1.0, Dimension::CAPACITANCE, true),
     unit("H", "henry", 1.0, Dimension::INDUCTANCE, true),
@@ -88,14 +100,38 @@ pub const UNITS: &[UnitDef] = &[
     },
     celsius("°C"),
     celsius("degC"),
-    unit("mol", "mole", 1.0, Dimension::base(crate::Base::Amount), true),
+    unit(
+        "mol",
+        "mole",
+        1.0,
+        Dimension::base(crate::Base::Amount),
+        true,
+    ),
     unit("rad", "radian", 1.0, Dimension::ANGLE, true),
     // NIST SP 811 B.8: 1 degree = 1.745329E-02 rad (= pi/180).
-    unit("deg", "degree of angle", std::f64::consts::PI / 180.0, Dimension::ANGLE, false),
-    unit("°", "degree of angle", std::f64::consts::PI / 180.0, Dimension::ANGLE, false),
+    unit(
+        "deg",
+        "degree of angle",
+        std::f64::consts::PI / 180.0,
+        Dimension::ANGLE,
+        false,
+    ),
+    unit(
+        "°",
+        "degree of angle",
+        std::f64::consts::PI / 180.0,
+        Dimension::ANGLE,
+        false,
+    ),
     unit("%", "percent", 1e-2, Dimension::NONE, false),
     unit("ppm", "part per million", 1e-6, Dimension::NONE, false),
-    unit("dB", "decibel (kept as a level, not converted)", 1.0, Dimension::LEVEL, false),
+    unit(
+        "dB",
+        "decibel (kept as a level, not converted)",
+        1.0,
+        Dimension::LEVEL,
+        false,
+    ),
 ];
 
 /// An SI prefix.
@@ -107,18 +143,54 @@ pub struct Prefix {
 
 /// SI prefixes; `u`, `µ` (micro sign) and `μ` (Greek mu) all mean micro.
 pub const PREFIXES: &[Prefix] = &[
-    Prefix { symbol: "T", factor: 1e12 },
-    Prefix { symbol: "G", factor: 1e9 },
-    Prefix { symbol: "M", factor: 1e6 },
-    Prefix { symbol: "k", factor: 1e3 },
-    Prefix { symbol: "c", factor: 1e-2 },
-    Prefix { symbol: "m", factor: 1e-3 },
-    Prefix { symbol: "u", factor: 1e-6 },
-    Prefix { symbol: "µ", factor: 1e-6 },
-    Prefix { symbol: "μ", factor: 1e-6 },
-    Prefix { symbol: "n", factor: 1e-9 },
-    Prefix { symbol: "p", factor: 1e-12 },
-    Prefix { symbol: "f", factor: 1e-15 },
+    Prefix {
+        symbol: "T",
+        factor: 1e12,
+    },
+    Prefix {
+        symbol: "G",
+        factor: 1e9,
+    },
+    Prefix {
+        symbol: "M",
+        factor: 1e6,
+    },
+    Prefix {
+        symbol: "k",
+        factor: 1e3,
+    },
+    Prefix {
+        symbol: "c",
+        factor: 1e-2,
+    },
+    Prefix {
+        symbol: "m",
+        factor: 1e-3,
+    },
+    Prefix {
+        symbol: "u",
+        factor: 1e-6,
+    },
+    Prefix {
+        symbol: "µ",
+        factor: 1e-6,
+    },
+    Prefix {
+        symbol: "μ",
+        factor: 1e-6,
+    },
+    Prefix {
+        symbol: "n",
+        factor: 1e-9,
+    },
+    Prefix {
+        symbol: "p",
+        factor: 1e-12,
+    },
+    Prefix {
+        symbol: "f",
+        factor: 1e-15,
+    },
 ];
 
 /// Looks up one unit atom (no operators), trying the whole symbol before a prefix split.
@@ -127,10 +199,10 @@ pub(crate) fn lookup_atom(atom: &str) -> Option<(UnitDef, f64)> {
         return Some((*def, 1.0));
     }
     for prefix in PREFIXES {
-        if let Some(rest) = atom.strip_prefix(prefix.symbol) {
-            if let Some(def) = UNITS.iter().find(|u| u.symbol == rest && u.prefixable) {
-                return Some((*def, prefix.factor));
-            }
+        if let Some(rest) = atom.strip_prefix(prefix.symbol)
+            && let Some(def) = UNITS.iter().find(|u| u.symbol == rest && u.prefixable)
+        {
+            return Some((*def, prefix.factor));
         }
     }
     None

@@ -1,11 +1,12 @@
 //! Conductor ratings: electromigration of on-die metal (Black's equation),
 //! fusing of bond wires (Preece) and board traces (IPC-2221).
 
+use uom::si::f64::TemperatureInterval;
 use uom::si::f64::{
-    Area, ElectricCurrent, ElectricCurrentDensity, Energy, Length, Ratio, ThermodynamicTemperature, Time,
+    Area, ElectricCurrent, ElectricCurrentDensity, Energy, Length, Ratio, ThermodynamicTemperature,
+    Time,
 };
 use uom::si::{area::square_inch, electric_current::ampere, length::inch, temperature_interval};
-use uom::si::f64::TemperatureInterval;
 
 /// The Boltzmann constant in eV/K (CODATA 2018, exact since the 2019 SI:
 /// k = 1.380649e-23 J/K and e = 1.602176634e-19 C give 8.617333262e-5 eV/K).
@@ -51,9 +52,14 @@ pub fn black_derating(
 }
 
 /// Electromigration rating of a metal line of given width and thickness.
-pub fn metal_rating(width: Length, thickness: Length, density: ElectricCurrentDensity, derating: Ratio) -> ElectricCurrent {
+pub fn metal_rating(
+    width: Length,
+    thickness: Length,
+    density: ElectricCurrentDensity,
+    derating: Ratio,
+) -> ElectricCurrent {
     let area: Area = width * thickness;
-    (density * area * derating).into()
+    density * area * derating
 }
 
 /// Preece's fusing constants, with the wire diameter in inches and the
@@ -74,7 +80,11 @@ pub fn preece_fusing_current(constant: f64, diameter: Length) -> ElectricCurrent
 
 /// IPC-2221 board conductor: I = k · ΔT^0.44 · A^0.725 with I in A, ΔT in °C
 /// rise and A in square mils; k = 0.048 for external and 0.024 for internal layers.
-pub fn ipc2221_current(external: bool, rise: TemperatureInterval, cross_section: Area) -> ElectricCurrent {
+pub fn ipc2221_current(
+    external: bool,
+    rise: TemperatureInterval,
+    cross_section: Area,
+) -> ElectricCurrent {
     let k = if external { 0.048 } else { 0.024 };
     let dt = rise.get::<temperature_interval::kelvin>();
     // 1 in² = 10^6 mil² exactly (1 mil = 0.001 in).
@@ -86,8 +96,11 @@ pub fn ipc2221_current(external: bool, rise: TemperatureInterval, cross_section:
 mod tests {
     use super::*;
     use uom::si::{
-        electric_current::milliampere, energy::electronvolt, length::{micrometer, mil},
-        thermodynamic_temperature::degree_celsius, time::year,
+        electric_current::milliampere,
+        energy::electronvolt,
+        length::{micrometer, mil},
+        thermodynamic_temperature::degree_celsius,
+        time::year,
     };
 
     fn close(a: f64, b: f64, rel: f64) -> bool {
@@ -123,7 +136,11 @@ mod tests {
         assert!(close(black_derating(p, t, t, None).value, 1.0, 1e-12));
         // Lifetime doubles, n = 2: J scales by (1/2)^(1/2).
         let life = Some((Time::new::<year>(20.0), Time::new::<year>(10.0)));
-        assert!(close(black_derating(p, t, t, life).value, 0.5f64.sqrt(), 1e-12));
+        assert!(close(
+            black_derating(p, t, t, life).value,
+            0.5f64.sqrt(),
+            1e-12
+        ));
     }
 
     // Preece's constants as tabulated from Preece (1884): a 1 mil copper wire
@@ -147,7 +164,11 @@ mod tests {
         let rise = TemperatureInterval::new::<temperature_interval::kelvin>(10.0);
         let a = Length::new::<mil>(10.0) * Length::new::<mil>(1.378);
         let ext = ipc2221_current(true, rise, a).get::<ampere>();
-        assert!(close(ext, 0.048 * 10f64.powf(0.44) * 13.78f64.powf(0.725), 1e-9));
+        assert!(close(
+            ext,
+            0.048 * 10f64.powf(0.44) * 13.78f64.powf(0.725),
+            1e-9
+        ));
         assert!(close(ext, 0.8855, 1e-3));
         let int = ipc2221_current(false, rise, a).get::<ampere>();
         assert!(close(int, ext / 2.0, 1e-12));
@@ -155,8 +176,15 @@ mod tests {
 
     #[test]
     fn metal_rating_from_geometry() {
-        let j = ElectricCurrentDensity::new::<uom::si::electric_current_density::ampere_per_square_meter>(1e-3 / 1e-12);
-        let i = metal_rating(Length::new::<micrometer>(30.0), Length::new::<micrometer>(0.9), j, Ratio::new::<uom::si::ratio::ratio>(1.0));
+        let j = ElectricCurrentDensity::new::<
+            uom::si::electric_current_density::ampere_per_square_meter,
+        >(1e-3 / 1e-12);
+        let i = metal_rating(
+            Length::new::<micrometer>(30.0),
+            Length::new::<micrometer>(0.9),
+            j,
+            Ratio::new::<uom::si::ratio::ratio>(1.0),
+        );
         assert!(close(i.get::<milliampere>(), 27.0, 1e-12));
     }
 }

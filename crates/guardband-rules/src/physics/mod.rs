@@ -3,6 +3,6 @@
 //! stated in non-SI units (Preece, IPC-2221) convert at their boundary.
 
 pub mod conductor;
+pub mod startup;
 pub mod statistics;
 pub mod thermal;
-pub mod startup;

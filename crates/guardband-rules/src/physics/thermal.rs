@@ -1,6 +1,9 @@
 //! Dissipation and junction temperature in a sustained short.
 
-use uom::si::f64::{ElectricCurrent, ElectricPotential, Power, TemperatureInterval, ThermalResistance, ThermodynamicTemperature};
+use uom::si::f64::{
+    ElectricCurrent, ElectricPotential, Power, TemperatureInterval, ThermalResistance,
+    ThermodynamicTemperature,
+};
 
 /// Power in the pass device with the output at 0 V: the whole supply across it.
 pub fn short_dissipation(supply_max: ElectricPotential, short_current: ElectricCurrent) -> Power {
@@ -8,8 +11,12 @@ pub fn short_dissipation(supply_max: ElectricPotential, short_current: ElectricC
 }
 
 /// Junction temperature: ambient plus power times junction-to-ambient resistance.
-pub fn junction_temperature(ambient: ThermodynamicTemperature, power: Power, theta_ja: ThermalResistance) -> ThermodynamicTemperature {
-    let rise: TemperatureInterval = (power * theta_ja).into();
+pub fn junction_temperature(
+    ambient: ThermodynamicTemperature,
+    power: Power,
+    theta_ja: ThermalResistance,
+) -> ThermodynamicTemperature {
+    let rise: TemperatureInterval = power * theta_ja;
     ambient + rise
 }
 
@@ -25,7 +32,10 @@ mod tests {
     // 85 K/W from 70 °C gives 70 + 107.1 = 177.1 °C.
     #[test]
     fn junction_from_ambient() {
-        let p = short_dissipation(ElectricPotential::new::<volt>(4.2), ElectricCurrent::new::<milliampere>(300.0));
+        let p = short_dissipation(
+            ElectricPotential::new::<volt>(4.2),
+            ElectricCurrent::new::<milliampere>(300.0),
+        );
         assert!((p.get::<watt>() - 1.26).abs() < 1e-12);
         let tj = junction_temperature(
             ThermodynamicTemperature::new::<degree_celsius>(70.0),

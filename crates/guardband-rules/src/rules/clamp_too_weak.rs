@@ -29,19 +29,31 @@ const RULE: &str = "clamp-too-weak";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for reg in ctx.model.regulators() {
-        let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else { continue };
-        let Some(amp) = pass.quantity("amplifier_drive") else { continue };
+        let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else {
+            continue;
+        };
+        let Some(amp) = pass.quantity("amplifier_drive") else {
+            continue;
+        };
         for limit in ctx.model.children(reg, BlockKind::Limit) {
-            let Some(clamp) = limit.quantity("clamp_drive") else { continue };
+            let Some(clamp) = limit.quantity("clamp_drive") else {
+                continue;
+            };
             if clamp.lo <= amp.hi {
-                let show = |x: f64, v: &guardband_model::Value| in_unit(x, v.kind, v.unit.as_deref());
+                let show =
+                    |x: f64, v: &guardband_model::Value| in_unit(x, v.kind, v.unit.as_deref());
                 let d = ctx
                     .at(RULE, Severity::Error, limit, "clamp_drive", format!(
                         "`{}` clamp drive {} (minimum) does not exceed the amplifier drive {} (maximum)",
                         limit.key(), show(clamp.lo, clamp), show(amp.hi, amp)
                     ))
                     .primary(format!("clamp {}", crate::format::bounds(clamp)));
-                let d = ctx.label(d, pass, "amplifier_drive", format!("amplifier {}", crate::format::bounds(amp)));
+                let d = ctx.label(
+                    d,
+                    pass,
+                    "amplifier_drive",
+                    format!("amplifier {}", crate::format::bounds(amp)),
+                );
                 out.push(d.help("the clamp must win the gate at every corner: strengthen it or limit the amplifier's output current"));
             }
         }

@@ -39,8 +39,7 @@ const RULE: &str = "conductor-under-rated";
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in &ctx.derived {
         let Some(worst) = &d.worst else { continue };
-        let unlimited = d.limits.is_empty()
-            && d.startup.as_ref().is_none_or(|s| !s.bounded);
+        let unlimited = d.limits.is_empty() && d.startup.as_ref().is_none_or(|s| !s.bounded);
         for cr in &d.conductors {
             let c = ctx.node(cr.node);
             let unit = worst.unit.as_deref();
@@ -48,10 +47,15 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             match &cr.rating {
                 Err(why) => {
                     out.push(
-                        Diagnostic::error(RULE, c.file, c.header_span.clone(), format!("cannot rate conductor `{}`: {why}", c.key()))
-                            .with_severity(Severity::Error)
-                            .primary("no rating")
-                            .help("complete its geometry or state `rating`"),
+                        Diagnostic::error(
+                            RULE,
+                            c.file,
+                            c.header_span.clone(),
+                            format!("cannot rate conductor `{}`: {why}", c.key()),
+                        )
+                        .with_severity(Severity::Error)
+                        .primary("no rating")
+                        .help("complete its geometry or state `rating`"),
                     );
                 }
                 Ok(rating) if *rating < worst.value && !unlimited => {
@@ -61,12 +65,20 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         c.header_span.clone(),
                         format!(
                             "conductor `{}` is rated {} but up to {} can flow ({})",
-                            c.key(), show(*rating), show(worst.value), worst.reason
+                            c.key(),
+                            show(*rating),
+                            show(worst.value),
+                            worst.reason
                         ),
                     )
                     .primary(format!("rated {} ({})", show(*rating), cr.basis));
                     if let Some((n, key)) = worst.from {
-                        diag = ctx.label(diag, ctx.node(n), key, format!("worst current {}", show(worst.value)));
+                        diag = ctx.label(
+                            diag,
+                            ctx.node(n),
+                            key,
+                            format!("worst current {}", show(worst.value)),
+                        );
                     }
                     for key in ["width", "diameter", "rating"] {
                         diag = ctx.label(diag, c, key, "sets the rating");

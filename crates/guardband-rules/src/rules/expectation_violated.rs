@@ -48,17 +48,38 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         for fault in ctx.model.children(reg, BlockKind::Fault) {
             let event = fault.choice("event");
             for exp in fault.fields_named("expect") {
-                let Some(bound) = exp.quantity() else { continue };
+                let Some(bound) = exp.quantity() else {
+                    continue;
+                };
                 let name = exp.name.as_deref().unwrap_or("");
                 let derived: Option<(f64, String)> = match (event, name) {
-                    (Some("short_to_ground" | "overload"), "current") => d.short.as_ref().map(|s| (s.current, s.reason.clone())).or_else(|| d.worst.as_ref().map(|w| (w.value, w.reason.clone()))),
-                    (Some("startup"), "current") => d.startup.as_ref().map(|s| (s.surge, s.surge_reason.clone())),
-                    (Some("short_to_ground" | "overload"), "junction") => d.short.as_ref().map(|s| (s.junction, "sustained-short junction temperature".to_string())),
-                    (Some("startup"), "time") => d.startup.as_ref().and_then(|s| s.time.map(|t| (t, "worst-case startup time".to_string()))),
+                    (Some("short_to_ground" | "overload"), "current") => d
+                        .short
+                        .as_ref()
+                        .map(|s| (s.current, s.reason.clone()))
+                        .or_else(|| d.worst.as_ref().map(|w| (w.value, w.reason.clone()))),
+                    (Some("startup"), "current") => d
+                        .startup
+                        .as_ref()
+                        .map(|s| (s.surge, s.surge_reason.clone())),
+                    (Some("short_to_ground" | "overload"), "junction") => {
+                        d.short.as_ref().map(|s| {
+                            (
+                                s.junction,
+                                "sustained-short junction temperature".to_string(),
+                            )
+                        })
+                    }
+                    (Some("startup"), "time") => d
+                        .startup
+                        .as_ref()
+                        .and_then(|s| s.time.map(|t| (t, "worst-case startup time".to_string()))),
                     _ => None,
                 };
-                let Some((value, why)) = derived else { continue };
-                let worst = if matches!(exp.relation, Relation::AtLeast | Relation::Above) { value } else { value };
+                let Some((value, why)) = derived else {
+                    continue;
+                };
+                let worst = value;
                 if !holds(exp.relation, worst, bound) {
                     let show = |x: f64| in_unit(x, bound.kind, bound.unit.as_deref());
                     out.push(

@@ -64,9 +64,17 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 let forces: Vec<_> = a.fields_named("force").collect();
                 if forces.is_empty() {
                     out.push(
-                        Diagnostic::error(RULE, a.file, a.header_span.clone(), format!("analysis `{}` does not force the output into limiting", a.key()))
-                            .primary("no `force`")
-                            .help("force the output below regulation, e.g. `force vout = 1.2 V`"),
+                        Diagnostic::error(
+                            RULE,
+                            a.file,
+                            a.header_span.clone(),
+                            format!(
+                                "analysis `{}` does not force the output into limiting",
+                                a.key()
+                            ),
+                        )
+                        .primary("no `force`")
+                        .help("force the output below regulation, e.g. `force vout = 1.2 V`"),
                     );
                 }
                 for f in forces {
@@ -79,22 +87,23 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                                 .help("force with a voltage source below regulation, or a resistance"),
                         );
                     } else if v.kind == QuantityKind::VOLTAGE {
-                        if let Some(out_v) = output {
-                            if v.hi >= out_v.lo {
-                                let d = Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
+                        if let Some(out_v) = output
+                            && v.hi >= out_v.lo
+                        {
+                            let d = Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
                                     "analysis `{}` forces `{}` to {}, not below regulation ({} minimum)",
                                     a.key(), f.key, show(v.hi), in_unit(out_v.lo, out_v.kind, out_v.unit.as_deref())
                                 ))
                                 .primary("the loop stays in regulation here")
                                 .help("force a voltage clearly below the output's low limit");
-                                out.push(ctx.label(d, reg, "output", "regulation range"));
-                            }
+                            out.push(ctx.label(d, reg, "output", "regulation range"));
                         }
-                    } else if v.kind == QuantityKind::of(Dimension::RESISTANCE) {
-                        if let (Some(out_v), Some(w)) = (output, &window) {
-                            // With a resistance the output settles at R·I_limit if that is below regulation.
-                            if v.hi * w.hi >= out_v.lo {
-                                out.push(
+                    } else if v.kind == QuantityKind::of(Dimension::RESISTANCE)
+                        && let (Some(out_v), Some(w)) = (output, &window)
+                    {
+                        // With a resistance the output settles at R·I_limit if that is below regulation.
+                        if v.hi * w.hi >= out_v.lo {
+                            out.push(
                                     Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
                                         "analysis `{}`: {} × limit top {} = {} reaches regulation ({} minimum), so the loop may not limit",
                                         a.key(), show(v.hi), in_unit(w.hi, w.kind, w.unit.as_deref()),
@@ -104,7 +113,6 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                                     .primary("resistance too high")
                                     .help("use a smaller resistance or a voltage source"),
                                 );
-                            }
                         }
                     }
                 }
@@ -123,10 +131,15 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 }
                 if a.named_field("require", "phase_margin").is_none() {
                     out.push(
-                        Diagnostic::error(RULE, a.file, a.header_span.clone(), format!("analysis `{}` states no phase-margin requirement", a.key()))
-                            .with_severity(Severity::Warning)
-                            .primary("no pass/fail criterion")
-                            .help("add `require phase_margin >= 45 deg` (or your design's figure)"),
+                        Diagnostic::error(
+                            RULE,
+                            a.file,
+                            a.header_span.clone(),
+                            format!("analysis `{}` states no phase-margin requirement", a.key()),
+                        )
+                        .with_severity(Severity::Warning)
+                        .primary("no pass/fail criterion")
+                        .help("add `require phase_margin >= 45 deg` (or your design's figure)"),
                     );
                 }
             }

@@ -43,7 +43,9 @@ const RULE: &str = "limit-within-load";
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in &ctx.derived {
         let reg = ctx.node(d.regulator);
-        let (Some(rated), Some(required)) = (d.rated_load, d.required()) else { continue };
+        let (Some(rated), Some(required)) = (d.rated_load, d.required()) else {
+            continue;
+        };
         for lw in &d.limits {
             let limit = ctx.node(lw.node);
             let (window, key) = match lw.scheme {
@@ -55,14 +57,30 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             };
             let unit = window.unit.as_deref().or(d.load_unit.as_deref());
             let show = |x: f64| in_unit(x, QuantityKind::CURRENT, unit);
-            let need = format!("rated {} + {} margin = {}", show(rated), percent(d.margin), show(required));
+            let need = format!(
+                "rated {} + {} margin = {}",
+                show(rated),
+                percent(d.margin),
+                show(required)
+            );
             if window.lo <= required {
                 let mut diag = ctx
-                    .at(RULE, Severity::Error, limit, key, format!(
-                        "`{}` limit low edge {} is at or below {need}",
-                        limit.key(), show(window.lo)
-                    ))
-                    .primary(format!("window {} .. {} (worst case)", show(window.lo), show(window.hi)));
+                    .at(
+                        RULE,
+                        Severity::Error,
+                        limit,
+                        key,
+                        format!(
+                            "`{}` limit low edge {} is at or below {need}",
+                            limit.key(),
+                            show(window.lo)
+                        ),
+                    )
+                    .primary(format!(
+                        "window {} .. {} (worst case)",
+                        show(window.lo),
+                        show(window.hi)
+                    ));
                 diag = ctx.label(diag, reg, "load", format!("rated load {}", show(rated)));
                 diag = add_contributors(ctx, diag, window);
                 out.push(diag.help("raise the nominal threshold or tighten the largest contributor; the tool compares worst-case corners"));
@@ -82,22 +100,37 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             show(stat.mean), show(stat.sigma), show(window.lo), show(window.hi)
                         ));
                     diag = add_contributors(ctx, diag, window);
-                    out.push(diag.help("raise the nominal threshold or tighten the largest contributor"));
+                    out.push(
+                        diag.help("raise the nominal threshold or tighten the largest contributor"),
+                    );
                 }
             }
         }
     }
 }
 
-fn add_contributors(ctx: &Context, mut diag: Diagnostic, window: &guardband_model::Value) -> Diagnostic {
+fn add_contributors(
+    ctx: &Context,
+    mut diag: Diagnostic,
+    window: &guardband_model::Value,
+) -> Diagnostic {
     let stat = crate::derive::statistical(window, ctx.config.sigma);
     for c in stat.contributors.iter().take(3) {
         let s = ctx.model.source(c.source);
-        let swing = if window.nom != 0.0 { c.sigma * ctx.config.sigma / window.nom.abs() } else { 0.0 };
+        let swing = if window.nom != 0.0 {
+            c.sigma * ctx.config.sigma / window.nom.abs()
+        } else {
+            0.0
+        };
         diag = diag.label(
             s.file,
             s.span.clone(),
-            format!("`{}` moves the window ± {}: {} of the variance", s.label, percent(swing), percent(c.share)),
+            format!(
+                "`{}` moves the window ± {}: {} of the variance",
+                s.label,
+                percent(swing),
+                percent(c.share)
+            ),
         );
     }
     diag

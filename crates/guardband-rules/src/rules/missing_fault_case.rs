@@ -31,7 +31,7 @@ use guardband_model::{BlockKind, Diagnostic, Node, Severity};
 
 const RULE: &str = "missing-fault-case";
 
-fn event<'a>(f: &'a Node) -> Option<&'a str> {
+fn event(f: &Node) -> Option<&str> {
     f.choice("event")
 }
 
@@ -43,24 +43,53 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 continue;
             }
             let on_pin = |f: &&&Node| f.reference("pin") == Some(pin.id);
-            if !faults.iter().filter(on_pin).any(|f| event(f) == Some("short_to_ground")) {
+            if !faults
+                .iter()
+                .filter(on_pin)
+                .any(|f| event(f) == Some("short_to_ground"))
+            {
                 out.push(
-                    Diagnostic::error(RULE, pin.file, pin.header_span.clone(), format!("off-chip pin `{}` has no short-to-ground fault case", pin.key()))
-                        .with_severity(Severity::Warning)
-                        .primary("can be shorted from outside")
-                        .help(format!("add `fault {}_short {{ pin = {}  event = short_to_ground }}`", pin.key(), pin.key())),
+                    Diagnostic::error(
+                        RULE,
+                        pin.file,
+                        pin.header_span.clone(),
+                        format!(
+                            "off-chip pin `{}` has no short-to-ground fault case",
+                            pin.key()
+                        ),
+                    )
+                    .with_severity(Severity::Warning)
+                    .primary("can be shorted from outside")
+                    .help(format!(
+                        "add `fault {}_short {{ pin = {}  event = short_to_ground }}`",
+                        pin.key(),
+                        pin.key()
+                    )),
                 );
             }
             if pin.quantity("capacitance").is_some()
-                && !faults
-                    .iter()
-                    .any(|f| event(f) == Some("startup") && (f.reference("pin").is_none() || f.reference("pin") == Some(pin.id)))
+                && !faults.iter().any(|f| {
+                    event(f) == Some("startup")
+                        && (f.reference("pin").is_none() || f.reference("pin") == Some(pin.id))
+                })
             {
                 out.push(
-                    Diagnostic::error(RULE, pin.file, ctx.value_span(pin, "capacitance"), format!("off-chip capacitor on `{}` has no startup fault case", pin.key()))
-                        .with_severity(Severity::Warning)
-                        .primary("charged by the startup surge")
-                        .help(format!("add `fault {}_startup {{ pin = {}  event = startup }}`", pin.key(), pin.key())),
+                    Diagnostic::error(
+                        RULE,
+                        pin.file,
+                        ctx.value_span(pin, "capacitance"),
+                        format!(
+                            "off-chip capacitor on `{}` has no startup fault case",
+                            pin.key()
+                        ),
+                    )
+                    .with_severity(Severity::Warning)
+                    .primary("charged by the startup surge")
+                    .help(format!(
+                        "add `fault {}_startup {{ pin = {}  event = startup }}`",
+                        pin.key(),
+                        pin.key()
+                    )),
                 );
             }
         }
@@ -73,10 +102,21 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             });
             if !exercised {
                 out.push(
-                    Diagnostic::error(RULE, limit.file, limit.header_span.clone(), format!("limit `{}` has no fault case that exercises it", limit.key()))
-                        .with_severity(Severity::Warning)
-                        .primary("never exercised by the test plan")
-                        .help(format!("add a fault case with `event = overload` or `exercises = {}`", limit.key())),
+                    Diagnostic::error(
+                        RULE,
+                        limit.file,
+                        limit.header_span.clone(),
+                        format!(
+                            "limit `{}` has no fault case that exercises it",
+                            limit.key()
+                        ),
+                    )
+                    .with_severity(Severity::Warning)
+                    .primary("never exercised by the test plan")
+                    .help(format!(
+                        "add a fault case with `event = overload` or `exercises = {}`",
+                        limit.key()
+                    )),
                 );
             }
         }

@@ -33,7 +33,9 @@ const RULE: &str = "short-overheat";
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in &ctx.derived {
         let reg = ctx.node(d.regulator);
-        let (Some(short), Some(limit)) = (&d.short, reg.quantity("junction_max")) else { continue };
+        let (Some(short), Some(limit)) = (&d.short, reg.quantity("junction_max")) else {
+            continue;
+        };
         if short.junction <= limit.lo {
             continue;
         }
@@ -42,18 +44,33 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         let temp = |k: f64| in_unit(k, QuantityKind::ABSOLUTE_TEMPERATURE, limit.unit.as_deref());
         let problem = match (tsd, tsd_threshold) {
             (None, _) => "and there is no thermal shutdown".to_string(),
-            (Some(_), Some(t)) if t.hi > limit.lo => format!("and the thermal shutdown can trip as late as {}", temp(t.hi)),
+            (Some(_), Some(t)) if t.hi > limit.lo => format!(
+                "and the thermal shutdown can trip as late as {}",
+                temp(t.hi)
+            ),
             (Some(_), None) => "and the thermal shutdown states no threshold".to_string(),
             _ => continue,
         };
         let mut diag = ctx
-            .at(RULE, Severity::Error, reg, "junction_max", format!(
-                "a sustained short heats the junction of `{}` to {} (above {}) {problem}",
-                reg.key(), temp(short.junction), temp(limit.lo)
-            ))
+            .at(
+                RULE,
+                Severity::Error,
+                reg,
+                "junction_max",
+                format!(
+                    "a sustained short heats the junction of `{}` to {} (above {}) {problem}",
+                    reg.key(),
+                    temp(short.junction),
+                    temp(limit.lo)
+                ),
+            )
             .primary(format!(
                 "{} × {} = {} into θJA",
-                in_unit(reg.quantity("supply").map(|s| s.hi).unwrap_or(0.0), QuantityKind::VOLTAGE, Some("V")),
+                in_unit(
+                    reg.quantity("supply").map(|s| s.hi).unwrap_or(0.0),
+                    QuantityKind::VOLTAGE,
+                    Some("V")
+                ),
                 in_unit(short.current, QuantityKind::CURRENT, None),
                 in_unit(short.power, QuantityKind::of(Dimension::POWER), None)
             ));

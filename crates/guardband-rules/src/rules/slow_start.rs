@@ -56,9 +56,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             }
             (_, Some(t)) => {
                 let Some(st) = start else { continue };
-                let Some(max) = st.quantity("time_max") else { continue };
+                let Some(max) = st.quantity("time_max") else {
+                    continue;
+                };
                 if t > max.lo {
-                    let time = |x: f64| in_unit(x, QuantityKind::of(Dimension::TIME), max.unit.as_deref());
+                    let time =
+                        |x: f64| in_unit(x, QuantityKind::of(Dimension::TIME), max.unit.as_deref());
                     let diag = ctx
                         .at(RULE, Severity::Error, st, "time_max", format!(
                             "`{}` takes up to {} to start (C·V/(I − load) = {} × {} / ({} − {})), above the required {}",

@@ -28,10 +28,22 @@ use guardband_model::{BlockKind, Diagnostic, Severity};
 const RULE: &str = "tolerance-missing";
 
 const WATCHED: &[(BlockKind, &[&str])] = &[
-    (BlockKind::Regulator, &["supply", "output", "ambient", "theta_ja"]),
+    (
+        BlockKind::Regulator,
+        &["supply", "output", "ambient", "theta_ja"],
+    ),
     (BlockKind::Pin, &["capacitance"]),
     (BlockKind::Pass, &["full_gate_current", "amplifier_drive"]),
-    (BlockKind::Limit, &["reference", "threshold", "clamp_drive", "fixed_current", "trip_current"]),
+    (
+        BlockKind::Limit,
+        &[
+            "reference",
+            "threshold",
+            "clamp_drive",
+            "fixed_current",
+            "trip_current",
+        ],
+    ),
     (BlockKind::Foldback, &["current"]),
     (BlockKind::ThermalShutdown, &["threshold"]),
 ];
@@ -41,15 +53,26 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         let mut nodes = vec![reg];
         nodes.extend(reg.children.iter().map(|c| ctx.node(*c)));
         for node in nodes {
-            let Some((_, keys)) = WATCHED.iter().find(|(k, _)| *k == node.kind) else { continue };
+            let Some((_, keys)) = WATCHED.iter().find(|(k, _)| *k == node.kind) else {
+                continue;
+            };
             for key in *keys {
-                let Some(v) = node.quantity(key) else { continue };
+                let Some(v) = node.quantity(key) else {
+                    continue;
+                };
                 if v.is_exact() {
                     out.push(
-                        ctx.at(RULE, Severity::Info, node, key, format!(
-                            "`{}.{key}` = {} is exact but feeds a worst-case derivation",
-                            node.path, crate::format::nominal(v)
-                        ))
+                        ctx.at(
+                            RULE,
+                            Severity::Info,
+                            node,
+                            key,
+                            format!(
+                                "`{}.{key}` = {} is exact but feeds a worst-case derivation",
+                                node.path,
+                                crate::format::nominal(v)
+                            ),
+                        )
                         .primary("no tolerance stated")
                         .help("state its tolerance (`± 10 %`) or range (`low .. high`)"),
                     );

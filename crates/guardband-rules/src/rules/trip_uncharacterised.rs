@@ -33,7 +33,9 @@ const RULE: &str = "trip-uncharacterised";
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for reg in ctx.model.regulators() {
         for limit in ctx.model.children(reg, BlockKind::Limit) {
-            if limit.choice("scheme") == Some("undervoltage_fixed") && limit.field("trip_current").is_none() {
+            if limit.choice("scheme") == Some("undervoltage_fixed")
+                && limit.field("trip_current").is_none()
+            {
                 out.push(
                     Diagnostic::error(RULE, limit.file, limit.header_span.clone(), format!(
                         "undervoltage-triggered limit `{}` states no characterised `trip_current`", limit.key()

@@ -42,41 +42,69 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         if start.and_then(|s| s.field("slew")).is_some() {
             continue;
         }
-        let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else { continue };
-        let Some(full_gate) = pass.quantity("full_gate_current") else { continue };
+        let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else {
+            continue;
+        };
+        let Some(full_gate) = pass.quantity("full_gate_current") else {
+            continue;
+        };
         let surge = full_gate.hi;
         let show = |x: f64| in_unit(x, QuantityKind::CURRENT, full_gate.unit.as_deref());
-        let mut over: Vec<(String, f64, guardband_model::FileId, std::ops::Range<usize>)> = Vec::new();
-        if let Some(s) = start {
-            if let Some(max) = s.quantity("supply_surge_max") {
-                if surge > max.hi {
-                    over.push(("the supply surge limit".into(), max.hi, s.file, ctx.value_span(s, "supply_surge_max")));
-                }
-            }
+        let mut over: Vec<(String, f64, guardband_model::FileId, std::ops::Range<usize>)> =
+            Vec::new();
+        if let Some(s) = start
+            && let Some(max) = s.quantity("supply_surge_max")
+            && surge > max.hi
+        {
+            over.push((
+                "the supply surge limit".into(),
+                max.hi,
+                s.file,
+                ctx.value_span(s, "supply_surge_max"),
+            ));
         }
         for cr in &d.conductors {
-            if let Ok(r) = cr.rating {
-                if surge > r {
-                    let c = ctx.node(cr.node);
-                    over.push((format!("conductor `{}`", c.key()), r, c.file, c.header_span.clone()));
-                }
+            if let Ok(r) = cr.rating
+                && surge > r
+            {
+                let c = ctx.node(cr.node);
+                over.push((
+                    format!("conductor `{}`", c.key()),
+                    r,
+                    c.file,
+                    c.header_span.clone(),
+                ));
             }
         }
         if over.is_empty() {
             continue;
         }
-        let rated = d.rated_load.map(|r| format!(" ({}× rated load)", crate::format::number(surge / r))).unwrap_or_default();
+        let rated = d
+            .rated_load
+            .map(|r| format!(" ({}× rated load)", crate::format::number(surge / r)))
+            .unwrap_or_default();
         let mut diag = ctx
-            .at(RULE, Severity::Error, pass, "full_gate_current", format!(
-                "`{}` starts with no limit: the full-gate surge of {}{rated} exceeds {}",
-                reg.key(),
-                show(surge),
-                over.iter().map(|(what, r, ..)| format!("{what} ({})", show(*r))).collect::<Vec<_>>().join(", ")
-            ))
+            .at(
+                RULE,
+                Severity::Error,
+                pass,
+                "full_gate_current",
+                format!(
+                    "`{}` starts with no limit: the full-gate surge of {}{rated} exceeds {}",
+                    reg.key(),
+                    show(surge),
+                    over.iter()
+                        .map(|(what, r, ..)| format!("{what} ({})", show(*r)))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            )
             .primary(format!("strong-corner full-gate current {}", show(surge)));
         for (what, r, file, span) in &over {
             diag = diag.label(*file, span.clone(), format!("{what}: {}", show(*r)));
         }
-        out.push(diag.help("add a current limit, a fixed-current start or a soft start (`startup { slew = ... }`)"));
+        out.push(diag.help(
+            "add a current limit, a fixed-current start or a soft start (`startup { slew = ... }`)",
+        ));
     }
 }
