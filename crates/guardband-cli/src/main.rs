@@ -173,6 +173,12 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
     }
 }
 
+/// Prints a line; a closed pipe (`guardband explain x | head`) is not an error.
+fn print_line(text: &str) {
+    use std::io::Write;
+    let _ = writeln!(std::io::stdout().lock(), "{text}");
+}
+
 fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
     let rules = guardband_rules::registry();
     if list || rule.is_none() {
@@ -187,15 +193,12 @@ fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
                     })
                 })
                 .collect();
-            println!(
-                "{}",
-                serde_json::to_string_pretty(&entries).unwrap_or_default()
-            );
+            print_line(&serde_json::to_string_pretty(&entries).unwrap_or_default());
         } else {
             let width = rules.iter().map(|r| r.name.len()).max().unwrap_or(0);
             for r in rules {
                 let sev = r.default_severity.map(|s| s.as_str()).unwrap_or("off");
-                println!("{:width$}  {:7}  {}", r.name, sev, r.summary);
+                print_line(&format!("{:width$}  {:7}  {}", r.name, sev, r.summary));
             }
         }
         return ExitCode::SUCCESS;
@@ -203,7 +206,7 @@ fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
     let name = rule.unwrap_or_default();
     match rules.iter().find(|r| r.name == name) {
         Some(r) => {
-            println!("{}", r.explain());
+            print_line(&r.explain());
             ExitCode::SUCCESS
         }
         None => {

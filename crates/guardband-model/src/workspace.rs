@@ -171,10 +171,7 @@ pub fn load(
                         format!("`{}` is outside the workspace root", u.path),
                     )
                     .primary("this path leaves the workspace")
-                    .help(format!(
-                        "imports must stay below {}; move the shared file into the workspace",
-                        root.display()
-                    )),
+                    .help("imports must stay inside the workspace (the folder holding guardband.toml); move the shared file into it"),
                 );
                 continue;
             }

@@ -244,6 +244,21 @@ where
         .map(move |(n, span)| number_expr(source, n, span))
         .labelled("a number");
 
+    // Folds `first (op next)*` into a tree, or reports a too-long chain.
+    macro_rules! chained {
+        () => {
+            |parts, _, emitter| {
+                chain(parts).unwrap_or_else(|(span, msg)| {
+                    emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
+                    Expr {
+                        kind: ExprKind::Error,
+                        span,
+                    }
+                })
+            }
+        };
+    }
+
     let expr = recursive(|expr| {
         let literal = number
             .or(
@@ -395,15 +410,7 @@ where
         let product = toleranced
             .clone()
             .then(product_op.then(toleranced).repeated().collect::<Vec<_>>())
-            .validate(|parts, _, emitter| {
-                chain(parts).unwrap_or_else(|(span, msg)| {
-                    emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
-                    Expr {
-                        kind: ExprKind::Error,
-                        span,
-                    }
-                })
-            })
+            .validate(chained!())
             .boxed();
 
         let sum_op = just(Token::Plus)
@@ -412,15 +419,7 @@ where
         let sum = product
             .clone()
             .then(sum_op.then(product).repeated().collect::<Vec<_>>())
-            .validate(|parts, _, emitter| {
-                chain(parts).unwrap_or_else(|(span, msg)| {
-                    emitter.emit(Rich::custom(SimpleSpan::from(span.clone()), msg));
-                    Expr {
-                        kind: ExprKind::Error,
-                        span,
-                    }
-                })
-            })
+            .validate(chained!())
             .boxed();
 
         sum.clone()

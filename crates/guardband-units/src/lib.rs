@@ -13,5 +13,5 @@ mod table;
 pub use bridge::{UomQuantity, to_uom};
 pub use dimension::{Base, Dimension};
 pub use kind::{QuantityKind, TempSense};
-pub use parse::{ParsedUnit, UnitError, parse_unit};
+pub use parse::{ParsedUnit, UnitError, edit_distance, parse_unit};
 pub use table::{PREFIXES, Prefix, UNITS, UnitDef};

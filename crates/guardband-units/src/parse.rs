@@ -160,7 +160,8 @@ fn suggest(atom: &str) -> Vec<String> {
     found.into_iter().take(3).map(|(_, s)| s).collect()
 }
 
-fn edit_distance(a: &str, b: &str) -> usize {
+/// Levenshtein distance over Unicode scalar values, for "did you mean" hints.
+pub fn edit_distance(a: &str, b: &str) -> usize {
     let b: Vec<char> = b.chars().collect();
     let mut prev: Vec<usize> = (0..=b.len()).collect();
     for (i, ca) in a.chars().enumerate() {
