@@ -104,6 +104,8 @@ pub struct WorstCurrent {
 #[derive(Debug, Clone)]
 pub struct ConductorRating {
     pub node: NodeId,
+    /// Resistance at its temperature, for metal with a `length` and a layer `resistivity`.
+    pub resistance: Option<f64>,
     /// Rating in A, or why none could be computed.
     pub rating: Result<f64, String>,
     pub basis: String,
@@ -286,6 +288,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
     let node = c.id;
     if let Some(r) = c.quantity("rating") {
         return ConductorRating {
+            resistance: None,
             node,
             rating: Ok(r.lo),
             basis: "stated rating (low end)".into(),
@@ -296,6 +299,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         let layer = model.node(layer_id);
         let Some(width) = c.quantity("width") else {
             return ConductorRating {
+                resistance: None,
                 node,
                 rating: Err("metal needs `width`".into()),
                 basis: String::new(),
@@ -312,6 +316,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
                     as_uom::<q::Length>(width, width.lo),
                 ) else {
                     return ConductorRating {
+                        resistance: None,
                         node,
                         rating: Err("layer data has the wrong units".into()),
                         basis: String::new(),
@@ -329,6 +334,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
             (None, Some(jw)) => jw.lo * width.lo,
             (None, None) => {
                 return ConductorRating {
+                    resistance: None,
                     node,
                     rating: Err(format!(
                         "layer `{}` states neither `current_density` with `thickness` nor `current_per_width`",
@@ -387,6 +393,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
                 }
                 _ if (t - t_ref.nom).abs() > 1e-9 && t > t_ref.nom => {
                     return ConductorRating {
+                        resistance: None,
                         node,
                         rating: Err(format!(
                             "layer `{}` is rated at {} but the conductor runs hotter, and `activation_energy`/`current_exponent` are missing to derate it",
@@ -404,6 +411,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
             }
         }
         return ConductorRating {
+            resistance: None,
             node,
             rating: Ok(base * factor),
             basis,
@@ -413,6 +421,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         let material = c.choice("material").unwrap_or("unstated");
         let Some(a) = conductor::preece_constant(material) else {
             return ConductorRating {
+                resistance: None,
                 node,
                 rating: Err(format!(
                     "no Preece constant for `{material}` bond wire; state `rating` from the wire maker's data"
@@ -422,6 +431,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         };
         let Some(dia) = as_uom::<q::Length>(d, d.lo) else {
             return ConductorRating {
+                resistance: None,
                 node,
                 rating: Err("diameter has the wrong unit".into()),
                 basis: String::new(),
@@ -430,6 +440,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
         let derating = c.quantity("derating").map(|v| v.lo).unwrap_or(1.0);
         let fuse = conductor::preece_fusing_current(a, dia).value;
         return ConductorRating {
+            resistance: None,
             node,
             rating: Ok(fuse * derating),
             basis: format!(
@@ -441,6 +452,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
     if let Some(placement) = c.choice("placement") {
         let (Some(w), Some(t)) = (c.quantity("width"), c.quantity("thickness")) else {
             return ConductorRating {
+                resistance: None,
                 node,
                 rating: Err("a board trace needs `width` and `thickness`".into()),
                 basis: String::new(),
@@ -455,6 +467,7 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
             area,
         );
         return ConductorRating {
+            resistance: None,
             node,
             rating: Ok(i.value),
             basis: format!(
@@ -463,11 +476,48 @@ pub fn conductor_rating(model: &Model, reg: &Node, c: &Node, config: &Config) ->
             ),
         };
     }
-    ConductorRating {
+    ConductorRating { resistance: None,
         node,
         rating: Err("give `layer` and `width` (metal), `diameter` and `material` (bond wire), `placement`, `width` and `thickness` (trace), or `rating`".into()),
         basis: String::new(),
     }
+}
+
+/// Resistance of a metal line at the temperature it sees, when its length and
+/// the layer's resistivity and thickness are stated.
+fn metal_resistance(model: &Model, reg: &Node, c: &Node) -> Option<f64> {
+    let layer = model.node(c.reference("layer")?);
+    let rho = layer.quantity("resistivity")?;
+    let thickness = layer.quantity("thickness")?;
+    let length = c.quantity("length")?;
+    let width = c.quantity("width")?;
+    let temperature = c
+        .quantity("temperature")
+        .or_else(|| reg.quantity("junction_max"))
+        .map(|v| v.hi);
+    let meter = q::Length::new::<uom::si::length::meter>;
+    let kelvin = q::ThermodynamicTemperature::new::<uom::si::thermodynamic_temperature::kelvin>;
+    let mut rho_t =
+        q::ElectricalResistivity::new::<uom::si::electrical_resistivity::ohm_meter>(rho.hi);
+    if let (Some(alpha), Some(t), Some(t_ref)) = (
+        layer.quantity("temperature_coefficient"),
+        temperature,
+        layer.quantity("reference_temperature"),
+    ) {
+        let a = q::TemperatureCoefficient::new::<uom::si::temperature_coefficient::per_kelvin>(
+            alpha.hi,
+        );
+        rho_t = conductor::resistivity_at(rho_t, a, kelvin(t), kelvin(t_ref.nom));
+    }
+    Some(
+        conductor::line_resistance(
+            rho_t,
+            meter(length.hi),
+            meter(width.lo),
+            meter(thickness.lo),
+        )
+        .value,
+    )
 }
 
 fn startup_figures(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Startup> {
@@ -610,7 +660,11 @@ pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
     let worst = worst_current(model, reg, &limits);
     let conductors = model
         .children(reg, BlockKind::Conductor)
-        .map(|c| conductor_rating(model, reg, c, config))
+        .map(|c| {
+            let mut rating = conductor_rating(model, reg, c, config);
+            rating.resistance = metal_resistance(model, reg, c);
+            rating
+        })
         .collect();
     let startup = startup_figures(model, reg, &limits);
     let short = short_figures(model, reg, worst.as_ref());

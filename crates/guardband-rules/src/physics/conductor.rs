@@ -1,10 +1,12 @@
 //! Conductor ratings: electromigration of on-die metal (Black's equation),
 //! fusing of bond wires (Preece) and board traces (IPC-2221).
 
-use uom::si::f64::TemperatureInterval;
 use uom::si::f64::{
     Area, ElectricCurrent, ElectricCurrentDensity, Energy, Length, Ratio, ThermodynamicTemperature,
     Time,
+};
+use uom::si::f64::{
+    ElectricalResistance, ElectricalResistivity, TemperatureCoefficient, TemperatureInterval,
 };
 use uom::si::{area::square_inch, electric_current::ampere, length::inch, temperature_interval};
 
@@ -49,6 +51,30 @@ pub fn black_derating(
         None => 1.0,
     };
     Ratio::new::<uom::si::ratio::ratio>(thermal * life)
+}
+
+/// Resistivity at temperature `t` from its value at `t_ref` and a linear
+/// temperature coefficient: ρ(T) = ρ_ref · (1 + α · (T − T_ref)).
+pub fn resistivity_at(
+    rho_ref: ElectricalResistivity,
+    alpha: TemperatureCoefficient,
+    t: ThermodynamicTemperature,
+    t_ref: ThermodynamicTemperature,
+) -> ElectricalResistivity {
+    let rise: TemperatureInterval =
+        TemperatureInterval::new::<temperature_interval::kelvin>(t.value - t_ref.value);
+    let growth: Ratio = (alpha * rise).into();
+    rho_ref * (Ratio::new::<uom::si::ratio::ratio>(1.0) + growth)
+}
+
+/// Resistance of a rectangular line: R = ρ · L / (w · t).
+pub fn line_resistance(
+    rho: ElectricalResistivity,
+    length: Length,
+    width: Length,
+    thickness: Length,
+) -> ElectricalResistance {
+    (rho * length / (width * thickness)).into()
 }
 
 /// Electromigration rating of a metal line of given width and thickness.
@@ -172,6 +198,67 @@ mod tests {
         assert!(close(ext, 0.8855, 1e-3));
         let int = ipc2221_current(false, rise, a).get::<ampere>();
         assert!(close(int, ext / 2.0, 1e-12));
+    }
+
+    // IEC 60028: annealed copper has ρ = 1/58 Ω·mm²/m = 1.7241e-8 Ω·m at
+    // 20 °C and a temperature coefficient of 0.00393 /K there, so at 75 °C
+    // ρ = 1.7241e-8 · (1 + 0.00393 · 55) = 2.0968e-8 Ω·m.
+    #[test]
+    fn iec60028_copper_resistivity() {
+        use uom::si::{electrical_resistivity::ohm_meter, temperature_coefficient::per_kelvin};
+        let rho = resistivity_at(
+            ElectricalResistivity::new::<ohm_meter>(1.0 / 58.0 * 1e-6),
+            TemperatureCoefficient::new::<per_kelvin>(0.00393),
+            ThermodynamicTemperature::new::<degree_celsius>(75.0),
+            ThermodynamicTemperature::new::<degree_celsius>(20.0),
+        );
+        assert!(close(rho.get::<ohm_meter>(), 2.0968e-8, 1e-4));
+        // 1 m of 1 mm² copper at 20 °C: 17.24 mΩ (the IEC 60028 definition of the standard).
+        let r = line_resistance(
+            ElectricalResistivity::new::<ohm_meter>(1.0 / 58.0 * 1e-6),
+            Length::new::<uom::si::length::meter>(1.0),
+            Length::new::<uom::si::length::millimeter>(1.0),
+            Length::new::<uom::si::length::millimeter>(1.0),
+        );
+        assert!(close(
+            r.get::<uom::si::electrical_resistance::ohm>(),
+            0.017_241,
+            1e-4
+        ));
+    }
+
+    // Aluminium: ρ = 2.65e-8 Ω·m at 20 °C and α about 0.0039 /K (handbook
+    // values, from memory of the CRC Handbook tables), so a line 1000 um long,
+    // 10 um wide and 1 um thick is 2.65 Ω at 20 °C; at 125 °C ρ grows by 1 + 0.0039·105.
+    #[test]
+    fn handbook_aluminium_line() {
+        use uom::si::{
+            electrical_resistivity::ohm_meter, length::micrometer,
+            temperature_coefficient::per_kelvin,
+        };
+        let rho20 = ElectricalResistivity::new::<ohm_meter>(2.65e-8);
+        let r = line_resistance(
+            rho20,
+            Length::new::<micrometer>(1000.0),
+            Length::new::<micrometer>(10.0),
+            Length::new::<micrometer>(1.0),
+        );
+        assert!(close(
+            r.get::<uom::si::electrical_resistance::ohm>(),
+            2.65,
+            1e-9
+        ));
+        let hot = resistivity_at(
+            rho20,
+            TemperatureCoefficient::new::<per_kelvin>(0.0039),
+            ThermodynamicTemperature::new::<degree_celsius>(125.0),
+            ThermodynamicTemperature::new::<degree_celsius>(20.0),
+        );
+        assert!(close(
+            hot.get::<ohm_meter>(),
+            2.65e-8 * (1.0 + 0.0039 * 105.0),
+            1e-9
+        ));
     }
 
     #[test]

@@ -72,6 +72,22 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         ),
                     )
                     .primary(format!("rated {} ({})", show(*rating), cr.basis));
+                    if let Some(r) = cr.resistance {
+                        diag = diag.label(
+                            c.file,
+                            ctx.value_span(c, "length"),
+                            format!(
+                                "{} at temperature: {} drop at {}",
+                                in_unit(
+                                    r,
+                                    QuantityKind::of(guardband_units::Dimension::RESISTANCE),
+                                    None
+                                ),
+                                in_unit(r * worst.value, QuantityKind::VOLTAGE, None),
+                                show(worst.value)
+                            ),
+                        );
+                    }
                     if let Some((n, key)) = worst.from {
                         diag = ctx.label(
                             diag,
