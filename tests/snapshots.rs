@@ -4,6 +4,16 @@
 mod common;
 use common::*;
 
+/// The entries of a folder, sorted by name.
+fn sorted(dir: &std::path::Path) -> Vec<std::path::PathBuf> {
+    let mut entries: Vec<_> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    entries.sort();
+    entries
+}
+
 fn snapshot(name: &str, text: &str) {
     let mut settings = insta::Settings::clone_current();
     settings.set_snapshot_path(root().join("tests/snapshots"));
@@ -14,12 +24,7 @@ fn snapshot(name: &str, text: &str) {
 #[test]
 fn diagnostics_fixtures() {
     let dir = fixture("diagnostics");
-    let mut files: Vec<_> = std::fs::read_dir(&dir)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .collect();
-    files.sort();
-    for file in files {
+    for file in sorted(&dir) {
         let name = file.file_name().unwrap().to_string_lossy().into_owned();
         let run = guardband(&dir, &["check", &name]);
         snapshot(
@@ -40,19 +45,9 @@ fn workspace_fixtures() {
 #[test]
 fn rule_fixtures() {
     let dir = fixture("rules");
-    let mut rules: Vec<_> = std::fs::read_dir(&dir)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .collect();
-    rules.sort();
-    for rule_dir in rules {
+    for rule_dir in sorted(&dir) {
         let rule = rule_dir.file_name().unwrap().to_string_lossy().into_owned();
-        let mut files: Vec<_> = std::fs::read_dir(&rule_dir)
-            .unwrap()
-            .map(|e| e.unwrap().path())
-            .collect();
-        files.sort();
-        for file in files {
+        for file in sorted(&rule_dir) {
             let name = file.file_name().unwrap().to_string_lossy().into_owned();
             let run = guardband(&rule_dir, &["check", &name]);
             snapshot(

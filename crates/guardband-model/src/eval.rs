@@ -258,18 +258,7 @@ impl<'a> Evaluator<'a> {
                     Target::Node(target) if kinds.contains(&self.model.node(target).kind) => {
                         Some(FieldValue::Ref(target))
                     }
-                    _ => {
-                        self.push(
-                            Diagnostic::error(
-                                "invalid-value",
-                                file,
-                                expr.span.clone(),
-                                format!("expected {}", ty.describe()),
-                            )
-                            .primary("this names something else"),
-                        );
-                        None
-                    }
+                    _ => self.expected(file, expr, ty, "this names something else"),
                 }
             }
             FieldType::Node => {
@@ -314,21 +303,30 @@ impl<'a> Evaluator<'a> {
                             terminal: None,
                         })
                     }
-                    _ => {
-                        self.push(
-                            Diagnostic::error(
-                                "invalid-value",
-                                file,
-                                expr.span.clone(),
-                                format!("expected {}", ty.describe()),
-                            )
-                            .primary("not a circuit node"),
-                        );
-                        None
-                    }
+                    _ => self.expected(file, expr, ty, "not a circuit node"),
                 }
             }
         }
+    }
+
+    /// Reports that a value is not what the field type expects.
+    fn expected(
+        &mut self,
+        file: FileId,
+        expr: &Expr,
+        ty: FieldType,
+        label: &str,
+    ) -> Option<FieldValue> {
+        self.push(
+            Diagnostic::error(
+                "invalid-value",
+                file,
+                expr.span.clone(),
+                format!("expected {}", ty.describe()),
+            )
+            .primary(label),
+        );
+        None
     }
 
     fn path_of(&mut self, file: FileId, expr: &Expr) -> Option<Vec<Ident>> {

@@ -399,7 +399,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "metal: the process layer",
             ),
             f("width", LENGTH, "metal or trace width"),
-            f("length", LENGTH, "metal: line length, for its resistance and voltage drop at the worst current"),
+            f(
+                "length",
+                LENGTH,
+                "metal: line length, for its resistance and voltage drop at the worst current",
+            ),
             f("diameter", LENGTH, "bond wire diameter"),
             f(
                 "material",

@@ -63,7 +63,7 @@ pub fn resistivity_at(
 ) -> ElectricalResistivity {
     let rise: TemperatureInterval =
         TemperatureInterval::new::<temperature_interval::kelvin>(t.value - t_ref.value);
-    let growth: Ratio = (alpha * rise).into();
+    let growth: Ratio = alpha * rise;
     rho_ref * (Ratio::new::<uom::si::ratio::ratio>(1.0) + growth)
 }
 
@@ -74,7 +74,7 @@ pub fn line_resistance(
     width: Length,
     thickness: Length,
 ) -> ElectricalResistance {
-    (rho * length / (width * thickness)).into()
+    rho * length / (width * thickness)
 }
 
 /// Electromigration rating of a metal line of given width and thickness.
