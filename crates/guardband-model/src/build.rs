@@ -108,13 +108,14 @@ fn add_block(
         path,
     });
     // Keys already taken in this block, with where, for duplicate checks.
-    let mut taken: Vec<(String, guardband_syntax::Span)> = Vec::new();
+    let mut taken: std::collections::HashMap<String, guardband_syntax::Span> =
+        std::collections::HashMap::new();
     let mut check_duplicate = |key: &str,
                                span: &guardband_syntax::Span,
                                what: &str,
                                diagnostics: &mut Vec<Diagnostic>|
      -> bool {
-        if let Some((_, first)) = taken.iter().find(|(k, _)| k == key) {
+        if let Some(first) = taken.get(key) {
             let rule = if what == "field" {
                 "duplicate-field"
             } else {
@@ -133,7 +134,7 @@ fn add_block(
             );
             return true;
         }
-        taken.push((key.to_string(), span.clone()));
+        taken.insert(key.to_string(), span.clone());
         false
     };
     for member in &block.members {
