@@ -45,6 +45,8 @@ struct Evaluator<'a> {
     states: Vec<Vec<State>>,
     stack: Vec<(NodeId, usize)>,
     diagnostics: &'a mut Vec<Diagnostic>,
+    /// The items each file can name, by file id (items never change during evaluation).
+    visible: Vec<Vec<NodeId>>,
 }
 
 /// Evaluates every field of every node in place, reporting problems.
@@ -54,12 +56,18 @@ pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnos
         .iter()
         .map(|n| vec![State::Pending; n.fields.len()])
         .collect();
+    let visible = ws
+        .files
+        .iter()
+        .map(|f| visible_items(ws, model, f.id))
+        .collect();
     let mut ev = Evaluator {
         ws,
         model,
         states,
         stack: Vec::new(),
         diagnostics,
+        visible,
     };
     for n in 0..ev.model.nodes.len() {
         for i in 0..ev.model.nodes[n].fields.len() {
@@ -195,34 +203,12 @@ impl<'a> Evaluator<'a> {
             FieldType::Bool => match expr.kind {
                 ExprKind::Bool(b) => Some(FieldValue::Bool(b)),
                 ExprKind::Error => None,
-                _ => {
-                    self.push(
-                        Diagnostic::error(
-                            "invalid-value",
-                            file,
-                            expr.span.clone(),
-                            "expected `true` or `false`",
-                        )
-                        .primary("not a yes/no value"),
-                    );
-                    None
-                }
+                _ => self.expected(file, expr, ty, "not a yes/no value"),
             },
             FieldType::Text => match &expr.kind {
                 ExprKind::Str(s) => Some(FieldValue::Text(s.clone())),
                 ExprKind::Error => None,
-                _ => {
-                    self.push(
-                        Diagnostic::error(
-                            "invalid-value",
-                            file,
-                            expr.span.clone(),
-                            "expected a quoted string",
-                        )
-                        .primary("write text in double quotes"),
-                    );
-                    None
-                }
+                _ => self.expected(file, expr, ty, "write text in double quotes"),
             },
             FieldType::Choice(options) => {
                 let word = match &expr.kind {
@@ -864,7 +850,7 @@ impl<'a> Evaluator<'a> {
             scope = node.parent;
         }
         let file = self.model.node(from).file;
-        for item in visible_items(self.ws, self.model, file) {
+        for &item in &self.visible[file.0 as usize] {
             let n = self.model.node(item);
             if n.key() == path[0].text {
                 if path.len() == 1 {

@@ -37,6 +37,11 @@ impl Workspace {
     /// Adds a file that is not a spec (such as `guardband.toml`) so that
     /// diagnostics can point into it. It is not parsed.
     pub fn add_text_file(&mut self, path: PathBuf, text: String) -> FileId {
+        self.push_file(path, text, Parse::default())
+    }
+
+    /// Appends a file with its display path and line index; returns its id.
+    fn push_file(&mut self, path: PathBuf, text: String, parse: Parse) -> FileId {
         let id = FileId(self.files.len() as u32);
         let display = path
             .strip_prefix(&self.root)
@@ -48,7 +53,7 @@ impl Workspace {
             path,
             display,
             text,
-            parse: Parse::default(),
+            parse,
             line_index,
             imports: Vec::new(),
         });
@@ -243,10 +248,6 @@ fn add_file(
     diagnostics: &mut Vec<Diagnostic>,
 ) -> FileId {
     let id = FileId(ws.files.len() as u32);
-    let display = path
-        .strip_prefix(&ws.root)
-        .map(|p| p.to_string_lossy().replace('\\', "/"))
-        .unwrap_or_else(|_| path.to_string_lossy().into_owned());
     let (text, parsed) = match decode(bytes) {
         Ok(text) => {
             let parsed = parse(&text);
@@ -266,17 +267,7 @@ fn add_file(
             (text, Parse::default())
         }
     };
-    let line_index = LineIndex::new(&text);
-    ws.files.push(SourceFile {
-        id,
-        path,
-        display,
-        text,
-        parse: parsed,
-        line_index,
-        imports: Vec::new(),
-    });
-    id
+    ws.push_file(path, text, parsed)
 }
 
 /// Reports each import cycle once, at the `use` that closes it.

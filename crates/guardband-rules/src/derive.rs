@@ -164,7 +164,7 @@ fn one_plus(v: &Value) -> Option<Value> {
 
 /// The threshold of a replica limit with mismatch and drain error applied
 /// (unless the threshold expression already depends on them).
-pub fn replica_window(limit: &Node) -> Option<Value> {
+fn replica_window(limit: &Node) -> Option<Value> {
     let mut window = match limit.quantity("threshold") {
         Some(t) => t.clone(),
         None => limit
@@ -249,7 +249,7 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
                 value,
                 unit: l.window.unit.clone(),
                 reason,
-                from: Some((l.id_node(), field)),
+                from: Some((l.node, field)),
             });
         }
     }
@@ -270,12 +270,6 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
             from: Some((pass, "full_gate_current")),
         }),
         (None, None) => None,
-    }
-}
-
-impl LimitWindow {
-    fn id_node(&self) -> NodeId {
-        self.node
     }
 }
 

@@ -59,7 +59,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 );
                 continue;
             }
-            let window = crate::derive::replica_window(limit);
+            let window = ctx
+                .derived
+                .iter()
+                .flat_map(|d| &d.limits)
+                .find(|l| l.node == limit.id)
+                .map(|l| &l.window);
             for a in analyses {
                 let forces: Vec<_> = a.fields_named("force").collect();
                 if forces.is_empty() {
@@ -99,7 +104,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             out.push(ctx.label(d, reg, "output", "regulation range"));
                         }
                     } else if v.kind == QuantityKind::of(Dimension::RESISTANCE)
-                        && let (Some(out_v), Some(w)) = (output, &window)
+                        && let (Some(out_v), Some(w)) = (output, window)
                     {
                         // With a resistance the output settles at R·I_limit if that is below regulation.
                         if v.hi * w.hi >= out_v.lo {
