@@ -40,6 +40,17 @@ enum Command {
         #[arg(long, value_enum)]
         deny: Option<Deny>,
     },
+    /// Rewrite .guard files in the canonical layout (or, with --check, list
+    /// the ones that are not).
+    Fmt {
+        /// Files or folders (default: the current folder).
+        paths: Vec<PathBuf>,
+        /// Change nothing; exit 1 if a file would be reformatted.
+        #[arg(long)]
+        check: bool,
+    },
+    /// Run the language server on standard input and output.
+    Lsp,
     /// Print a rule's documentation.
     Explain {
         /// The rule name, e.g. `limit-within-load`.
@@ -90,6 +101,11 @@ fn run() -> ExitCode {
             deny,
         } => check(paths, format, deny.is_some()),
         Command::Explain { rule, list, format } => explain(rule, list, format),
+        Command::Fmt { paths, check } => fmt(paths, check),
+        Command::Lsp => match guardband_lsp::run_stdio() {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(code) => ExitCode::from(code),
+        },
     }
 }
 
@@ -114,51 +130,25 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
         }
     };
     let root = collect::workspace_root(&paths[0], &cwd);
-    let mut diagnostics = Vec::new();
-    let mut ws = match guardband_model::load(&root, &files, &mut diagnostics) {
-        Ok(ws) => ws,
+    let checked = match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
+        Ok(c) => c,
         Err((path, e)) => {
             eprintln!("guardband: cannot read {}: {e}", path.display());
             return ExitCode::from(2);
         }
     };
-    let (config, config_diagnostics) = guardband_rules::Config::load(&mut ws);
-    diagnostics.extend(config_diagnostics);
-    let (model, model_diagnostics) = guardband_model::check(&ws);
-    diagnostics.extend(model_diagnostics);
-    diagnostics = guardband_rules::analyse(&ws, &model, &config, diagnostics);
-    ws.normalize_spans(&mut diagnostics);
-    diagnostics.sort_by(|a, b| {
-        (
-            ws.file(a.file).display.as_str(),
-            a.span.start,
-            a.span.end,
-            a.rule,
-        )
-            .cmp(&(
-                ws.file(b.file).display.as_str(),
-                b.span.start,
-                b.span.end,
-                b.rule,
-            ))
-    });
+    let (ws, config, diagnostics) = (&checked.ws, &checked.config, &checked.diagnostics);
     let files_checked = ws
         .files
         .iter()
         .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
         .count();
-    let errors = diagnostics
-        .iter()
-        .filter(|d| d.severity == guardband_model::Severity::Error)
-        .count();
-    let warnings = diagnostics
-        .iter()
-        .filter(|d| d.severity == guardband_model::Severity::Warning)
-        .count();
+    let errors = checked.count(guardband_model::Severity::Error);
+    let warnings = checked.count(guardband_model::Severity::Warning);
     let deny = deny_warnings || config.deny_warnings;
     let written = match format {
-        Format::Human => render::human(&ws, &diagnostics, files_checked),
-        Format::Json => render::json(&ws, &diagnostics, files_checked),
+        Format::Human => render::human(ws, diagnostics, files_checked),
+        Format::Json => render::json(ws, diagnostics, files_checked),
     };
     if let Err(e) = written
         && e.kind() != std::io::ErrorKind::BrokenPipe
@@ -167,6 +157,64 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
         return ExitCode::from(2);
     }
     if errors > 0 || (deny && warnings > 0) {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    }
+}
+
+fn fmt(paths: Vec<PathBuf>, check_only: bool) -> ExitCode {
+    let paths = if paths.is_empty() {
+        vec![PathBuf::from(".")]
+    } else {
+        paths
+    };
+    let files = match collect::guard_files(&paths) {
+        Ok(f) => f,
+        Err(msg) => {
+            eprintln!("guardband: {msg}");
+            return ExitCode::from(2);
+        }
+    };
+    let (mut unformatted, mut failed) = (0, false);
+    for path in files {
+        let text = match std::fs::read(&path).map(|b| guardband_model::decode(&b)) {
+            Ok(Ok(t)) => t,
+            Ok(Err((_, _, why))) => {
+                eprintln!("guardband: {}: {why}", path.display());
+                failed = true;
+                continue;
+            }
+            Err(e) => {
+                eprintln!("guardband: cannot read {}: {e}", path.display());
+                failed = true;
+                continue;
+            }
+        };
+        let Some(formatted) = guardband_syntax::format::format(&text) else {
+            eprintln!(
+                "guardband: {} has syntax errors; not formatted (see `guardband check`)",
+                path.display()
+            );
+            failed = true;
+            continue;
+        };
+        if formatted == text {
+            continue;
+        }
+        unformatted += 1;
+        if check_only {
+            print_line(&format!("would reformat {}", path.display()));
+        } else if let Err(e) = std::fs::write(&path, formatted) {
+            eprintln!("guardband: cannot write {}: {e}", path.display());
+            failed = true;
+        } else {
+            print_line(&format!("reformatted {}", path.display()));
+        }
+    }
+    if failed {
+        ExitCode::from(2)
+    } else if check_only && unformatted > 0 {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS

@@ -102,6 +102,7 @@ fn add_block(
         file,
         span: block.span.clone(),
         header_span: header_span(block),
+        name_span: block.key().span.clone(),
         parent,
         fields: Vec::new(),
         children: Vec::new(),

@@ -1,7 +1,7 @@
 //! Evaluation of field values: name resolution, unit conversion, interval
 //! arithmetic with tracked tolerances, kind checks and cycle detection.
 
-use crate::model::{FieldValue, Model, NodeId};
+use crate::model::{FieldValue, Model, NodeId, Reference, Symbol};
 use crate::schema::{self, BlockKind, FieldType};
 use crate::suggest::did_you_mean;
 use crate::value::{Corner, SourceId, ToleranceSource, Value, ValueError};
@@ -74,6 +74,9 @@ pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnos
             ev.field(NodeId(n as u32), i);
         }
     }
+    let refs = &mut ev.model.references;
+    refs.sort_by_key(|r| (r.file, r.span.start, r.span.end, r.target));
+    refs.dedup();
 }
 
 fn unit_help(kind: QuantityKind) -> String {
@@ -767,14 +770,33 @@ impl<'a> Evaluator<'a> {
     }
 
     /// Resolves without reporting.
-    fn resolve_quiet(&self, from: NodeId, path: &[Ident]) -> Option<Target> {
-        self.lookup_scopes(from, path, true).ok()
+    fn resolve_quiet(&mut self, from: NodeId, path: &[Ident]) -> Option<Target> {
+        let mut trail = Vec::new();
+        let found = self.lookup_scopes(from, path, true, &mut trail).ok()?;
+        self.record(from, trail);
+        Some(found)
+    }
+
+    /// Keeps the resolved segments of a path for navigation.
+    fn record(&mut self, from: NodeId, trail: Vec<(Span, Symbol)>) {
+        let file = self.file_of(from);
+        self.model
+            .references
+            .extend(
+                trail
+                    .into_iter()
+                    .map(|(span, target)| Reference { file, span, target }),
+            );
     }
 
     /// Resolves a dotted path from `from`, reporting an unknown name.
     fn resolve(&mut self, from: NodeId, path: &[Ident], want_block: bool) -> Option<Target> {
-        match self.lookup_scopes(from, path, want_block) {
-            Ok(t) => Some(t),
+        let mut trail = Vec::new();
+        match self.lookup_scopes(from, path, want_block, &mut trail) {
+            Ok(t) => {
+                self.record(from, trail);
+                Some(t)
+            }
             Err((bad, candidates)) => {
                 let file = self.file_of(from);
                 let seg = &path[bad];
@@ -816,6 +838,7 @@ impl<'a> Evaluator<'a> {
         from: NodeId,
         path: &[Ident],
         want_block: bool,
+        trail: &mut Vec<(Span, Symbol)>,
     ) -> Result<Target, (usize, Vec<String>)> {
         let (path, corner) = match path.split_last() {
             Some((last, rest)) if !rest.is_empty() => match last.text.as_str() {
@@ -837,7 +860,7 @@ impl<'a> Evaluator<'a> {
                     .iter()
                     .any(|c| self.model.node(*c).key() == path[0].text)
             {
-                return self.descend(s, path, corner, 0);
+                return self.descend(s, path, corner, 0, trail);
             }
             if !want_block {
                 candidates.extend(node.fields.iter().map(|f| f.key.clone()));
@@ -853,10 +876,11 @@ impl<'a> Evaluator<'a> {
         for &item in &self.visible[file.0 as usize] {
             let n = self.model.node(item);
             if n.key() == path[0].text {
+                trail.push((path[0].span.clone(), Symbol::Node(item)));
                 if path.len() == 1 {
                     return Ok(Target::Node(item));
                 }
-                return self.descend(item, &path[1..], corner, 1);
+                return self.descend(item, &path[1..], corner, 1, trail);
             }
             candidates.push(n.key().to_string());
         }
@@ -870,6 +894,7 @@ impl<'a> Evaluator<'a> {
         path: &[Ident],
         corner: Option<Corner>,
         offset: usize,
+        trail: &mut Vec<(Span, Symbol)>,
     ) -> Result<Target, (usize, Vec<String>)> {
         let n = self.model.node(node);
         let seg = &path[0];
@@ -883,6 +908,7 @@ impl<'a> Evaluator<'a> {
             if path.len() > 1 {
                 return Err((offset + 1, vec!["min".into(), "nom".into(), "max".into()]));
             }
+            trail.push((seg.span.clone(), Symbol::Field(node, i)));
             return Ok(Target::Field(node, i, corner));
         }
         if let Some(c) = n
@@ -891,6 +917,7 @@ impl<'a> Evaluator<'a> {
             .copied()
             .find(|c| self.model.node(*c).key() == seg.text)
         {
+            trail.push((seg.span.clone(), Symbol::Node(c)));
             if path.len() == 1 {
                 return if corner.is_some() {
                     Err((offset + 1, Vec::new()))
@@ -898,7 +925,7 @@ impl<'a> Evaluator<'a> {
                     Ok(Target::Node(c))
                 };
             }
-            return self.descend(c, &path[1..], corner, offset + 1);
+            return self.descend(c, &path[1..], corner, offset + 1, trail);
         }
         let mut names: Vec<String> = n.fields.iter().map(|f| f.key.clone()).collect();
         names.extend(

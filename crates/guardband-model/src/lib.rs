@@ -15,11 +15,11 @@ mod workspace;
 
 pub use diagnostic::{Diagnostic, FileId, Label, Severity};
 pub use eval::visible_items;
-pub use model::{Field, FieldValue, Model, Node, NodeId};
+pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
 pub use value::{Corner, SourceId, Term, ToleranceSource, Value, ValueError};
-pub use workspace::{SourceFile, Workspace, decode, load, normalize};
+pub use workspace::{SourceFile, Workspace, decode, load, load_with, normalize};
 
 use guardband_syntax::SyntaxError;
 

@@ -63,6 +63,8 @@ pub struct Node {
     pub span: Span,
     /// The keyword and name, for pointing at the block itself.
     pub header_span: Span,
+    /// The name if there is one, else the keyword: what a reference renames.
+    pub name_span: Span,
     pub parent: Option<NodeId>,
     pub fields: Vec<Field>,
     pub children: Vec<NodeId>,
@@ -123,10 +125,29 @@ impl Node {
     }
 }
 
+/// Something a name in the source can point at: a block or one of its fields.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Symbol {
+    Node(NodeId),
+    /// A node and the index of the field in [`Node::fields`].
+    Field(NodeId, usize),
+}
+
+/// One use of a name, resolved: editors navigate and rename with these.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Reference {
+    pub file: FileId,
+    /// The span of the one path segment that names `target`.
+    pub span: Span,
+    pub target: Symbol,
+}
+
 /// Every checked block of a workspace.
 #[derive(Debug, Clone, Default)]
 pub struct Model {
     pub nodes: Vec<Node>,
+    /// Every resolved name in a value, sorted by file and position.
+    pub references: Vec<Reference>,
     /// Top-level items (regulators and processes), in file order.
     pub items: Vec<NodeId>,
     /// Every tolerance or range stated anywhere, indexed by [`crate::SourceId`].
@@ -175,6 +196,28 @@ impl Model {
             id = p;
         }
         self.node(id)
+    }
+
+    /// Where a symbol is defined: its file and the span of its name.
+    pub fn definition(&self, symbol: Symbol) -> (FileId, Span) {
+        match symbol {
+            Symbol::Node(n) => {
+                let node = self.node(n);
+                (node.file, node.name_span.clone())
+            }
+            Symbol::Field(n, i) => {
+                let node = self.node(n);
+                (node.file, node.fields[i].key_span.clone())
+            }
+        }
+    }
+
+    /// The name a symbol is known by.
+    pub fn symbol_name(&self, symbol: Symbol) -> &str {
+        match symbol {
+            Symbol::Node(n) => self.node(n).key(),
+            Symbol::Field(n, i) => &self.node(n).fields[i].key,
+        }
     }
 
     /// The tolerance source behind an id.

@@ -141,18 +141,44 @@ pub fn load(
     entries: &[PathBuf],
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
+    load_with(root, entries, &|p: &Path| std::fs::read(p), diagnostics)
+}
+
+/// Like [`load`], but file contents come from `read`, so that an editor can
+/// check the text in its buffers instead of what is saved on disk. A path
+/// that `read` knows but the disk does not (an unsaved buffer) is kept as it
+/// is, made absolute and normalised.
+pub fn load_with(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    diagnostics: &mut Vec<Diagnostic>,
+) -> Result<Workspace, (PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    let canonical_or_known = |path: &Path| -> std::io::Result<PathBuf> {
+        match path.canonicalize() {
+            Ok(c) => Ok(c),
+            Err(e) => {
+                let plain = normalize(path);
+                if read(&plain).is_ok() {
+                    Ok(plain)
+                } else {
+                    Err(e)
+                }
+            }
+        }
+    };
     let mut ws = Workspace {
         root: root.clone(),
         files: Vec::new(),
     };
     let mut queue: Vec<FileId> = Vec::new();
     for entry in entries {
-        let path = entry.canonicalize().map_err(|e| (entry.clone(), e))?;
+        let path = canonical_or_known(entry).map_err(|e| (entry.clone(), e))?;
         if ws.find(&path).is_some() {
             continue;
         }
-        let bytes = std::fs::read(&path).map_err(|e| (entry.clone(), e))?;
+        let bytes = read(&path).map_err(|e| (entry.clone(), e))?;
         let id = add_file(&mut ws, path, &bytes, diagnostics);
         queue.push(id);
     }
@@ -180,7 +206,7 @@ pub fn load(
                 );
                 continue;
             }
-            let canonical = match target.canonicalize() {
+            let canonical = match canonical_or_known(&target) {
                 Ok(c) => c,
                 Err(_) => {
                     diagnostics.push(
@@ -213,7 +239,7 @@ pub fn load(
             }
             let target_id = match ws.find(&canonical) {
                 Some(t) => t,
-                None => match std::fs::read(&canonical) {
+                None => match read(&canonical) {
                     Ok(bytes) => {
                         let t = add_file(&mut ws, canonical, &bytes, diagnostics);
                         queue.push(t);

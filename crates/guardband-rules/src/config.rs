@@ -130,9 +130,17 @@ impl Config {
     /// diagnostics in that file (added to the workspace so they can be shown);
     /// the defaults stand in for any bad value.
     pub fn load(ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
+        Config::load_with(ws, &|p: &std::path::Path| std::fs::read(p))
+    }
+
+    /// Like [`Config::load`], reading through `read` (an editor's buffers).
+    pub fn load_with(
+        ws: &mut Workspace,
+        read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
+    ) -> (Config, Vec<Diagnostic>) {
         let path = ws.root.join("guardband.toml");
         let mut config = Config::default();
-        let Ok(bytes) = std::fs::read(&path) else {
+        let Ok(bytes) = read(&path) else {
             return (config, Vec::new());
         };
         let text = String::from_utf8_lossy(&bytes).into_owned();

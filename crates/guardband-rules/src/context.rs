@@ -10,7 +10,7 @@ pub struct Context<'a> {
     pub ws: &'a Workspace,
     pub model: &'a Model,
     pub config: &'a Config,
-    pub derived: Vec<Derived>,
+    pub derived: &'a [Derived],
 }
 
 impl<'a> Context<'a> {

@@ -18,7 +18,82 @@ pub use config::Config;
 pub use derive::{Derived, derive};
 pub use registry::{CAUTION, RuleInfo, registry};
 
-use guardband_model::{Diagnostic, Model, Workspace};
+use guardband_model::{Diagnostic, Model, Severity, Workspace};
+use std::path::Path;
+
+/// Everything one check of a workspace produced: the CLI prints it, the
+/// language server publishes it and answers hovers from it. Both build it
+/// with [`check_workspace`], so they can never disagree.
+pub struct Checked {
+    pub ws: Workspace,
+    pub config: Config,
+    pub model: Model,
+    /// One entry per regulator, in the order of [`Model::regulators`].
+    pub derived: Vec<Derived>,
+    /// Every finding, spans normalised, sorted by file, position and rule.
+    pub diagnostics: Vec<Diagnostic>,
+}
+
+impl Checked {
+    /// Number of findings of one severity.
+    pub fn count(&self, severity: Severity) -> usize {
+        self.diagnostics
+            .iter()
+            .filter(|d| d.severity == severity)
+            .count()
+    }
+
+    /// The derivation of the regulator with this node id.
+    pub fn derived_for(&self, regulator: guardband_model::NodeId) -> Option<&Derived> {
+        self.model
+            .regulators()
+            .position(|r| r.id == regulator)
+            .and_then(|i| self.derived.get(i))
+    }
+}
+
+/// The whole check: load `entries` and their imports under `root` through
+/// `read`, read `guardband.toml`, build and evaluate the model, derive, run
+/// the rules. Unreadable entry files are an error naming the path.
+pub fn check_workspace(
+    root: &Path,
+    entries: &[std::path::PathBuf],
+    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
+    let mut diagnostics = Vec::new();
+    let mut ws = guardband_model::load_with(root, entries, read, &mut diagnostics)?;
+    let (config, config_diagnostics) = Config::load_with(&mut ws, read);
+    diagnostics.extend(config_diagnostics);
+    let (model, model_diagnostics) = guardband_model::check(&ws);
+    diagnostics.extend(model_diagnostics);
+    let derived: Vec<Derived> = model
+        .regulators()
+        .map(|r| derive(&model, r, &config))
+        .collect();
+    let mut diagnostics = run_rules(&ws, &model, &config, &derived, diagnostics);
+    ws.normalize_spans(&mut diagnostics);
+    diagnostics.sort_by(|a, b| {
+        (
+            ws.file(a.file).display.as_str(),
+            a.span.start,
+            a.span.end,
+            a.rule,
+        )
+            .cmp(&(
+                ws.file(b.file).display.as_str(),
+                b.span.start,
+                b.span.end,
+                b.rule,
+            ))
+    });
+    Ok(Checked {
+        ws,
+        config,
+        model,
+        derived,
+        diagnostics,
+    })
+}
 
 /// Runs every enabled rule and applies waivers. `diagnostics` holds what the
 /// model found already; the lint findings and waiver problems are appended.
@@ -26,12 +101,22 @@ pub fn analyse(
     ws: &Workspace,
     model: &Model,
     config: &Config,
-    mut diagnostics: Vec<Diagnostic>,
+    diagnostics: Vec<Diagnostic>,
 ) -> Vec<Diagnostic> {
-    let derived = model
+    let derived: Vec<Derived> = model
         .regulators()
         .map(|r| derive(model, r, config))
         .collect();
+    run_rules(ws, model, config, &derived, diagnostics)
+}
+
+fn run_rules(
+    ws: &Workspace,
+    model: &Model,
+    config: &Config,
+    derived: &[Derived],
+    mut diagnostics: Vec<Diagnostic>,
+) -> Vec<Diagnostic> {
     let ctx = context::Context {
         ws,
         model,

@@ -41,6 +41,15 @@ impl RuleInfo {
             .join("\n")
     }
 
+    /// One `## Heading` section of the documentation, without its heading.
+    pub fn section(&self, heading: &str) -> Option<String> {
+        let docs = self.documentation();
+        let start = docs.find(&format!("## {heading}\n"))? + heading.len() + 4;
+        let body = &docs[start..];
+        let end = body.find("\n## ").unwrap_or(body.len());
+        Some(body[..end].trim().to_string())
+    }
+
     /// The full `guardband explain` text.
     pub fn explain(&self) -> String {
         let sev = self.default_severity.map(|s| s.as_str()).unwrap_or("off");

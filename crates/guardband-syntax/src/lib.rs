@@ -5,6 +5,7 @@
 //! at the edges (terminal, JSON, LSP).
 
 pub mod ast;
+pub mod format;
 mod lexer;
 mod line_index;
 mod parser;

@@ -60,6 +60,30 @@ impl LineIndex {
         }
     }
 
+    /// The byte offset of a 0-based line and UTF-8 (byte) column, clamped like
+    /// [`LineIndex::offset_utf16`]; a column inside a character snaps back to its start.
+    pub fn offset_utf8(&self, line: u32, col: u32) -> usize {
+        let Some(&start) = self.line_starts.get(line as usize) else {
+            return self.text.len();
+        };
+        let end = self
+            .line_starts
+            .get(line as usize + 1)
+            .map(|e| e - 1)
+            .unwrap_or(self.text.len());
+        let line_text = self.text[start..end].trim_end_matches('\r');
+        let mut offset = start + (col as usize).min(line_text.len());
+        while !self.text.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        offset
+    }
+
+    /// The text this index was built from.
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+
     /// The byte offset of a 0-based line and UTF-16 column; clamps past-the-end
     /// lines to the end of the text and past-the-end columns to the line end.
     pub fn offset_utf16(&self, line: u32, col: u32) -> usize {
@@ -117,6 +141,11 @@ mod tests {
         assert_eq!(idx.offset_utf16(0, 50), 2);
         assert_eq!(idx.offset_utf16(9, 0), 6);
         assert_eq!(idx.offset_utf16(1, 1), 5);
+        assert_eq!(idx.offset_utf8(0, 50), 2);
+        assert_eq!(idx.offset_utf8(9, 0), 6);
+        let multi = LineIndex::new("µx");
+        assert_eq!(multi.offset_utf8(0, 1), 0, "inside µ snaps back");
+        assert_eq!(multi.offset_utf8(0, 2), 2);
     }
 
     #[test]

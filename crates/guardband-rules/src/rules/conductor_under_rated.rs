@@ -37,7 +37,7 @@ use guardband_units::QuantityKind;
 const RULE: &str = "conductor-under-rated";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         let Some(worst) = &d.worst else { continue };
         let unlimited = d.limits.is_empty() && d.startup.as_ref().is_none_or(|s| !s.bounded);
         for cr in &d.conductors {

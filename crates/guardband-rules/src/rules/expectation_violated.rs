@@ -43,7 +43,7 @@ fn holds(relation: Relation, derived: f64, bound: &Value) -> bool {
 }
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         for fault in ctx.model.children(reg, BlockKind::Fault) {
             let event = fault.choice("event");

@@ -41,7 +41,7 @@ use guardband_units::QuantityKind;
 const RULE: &str = "limit-within-load";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         let (Some(rated), Some(required)) = (d.rated_load, d.required()) else {
             continue;

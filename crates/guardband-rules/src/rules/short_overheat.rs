@@ -31,7 +31,7 @@ use guardband_units::{Dimension, QuantityKind};
 const RULE: &str = "short-overheat";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         let (Some(short), Some(limit)) = (&d.short, reg.quantity("junction_max")) else {
             continue;

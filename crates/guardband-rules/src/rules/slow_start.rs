@@ -34,7 +34,7 @@ use guardband_units::{Dimension, QuantityKind};
 const RULE: &str = "slow-start";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         let Some(s) = &d.startup else { continue };
         let start = ctx.model.child(reg, BlockKind::Startup);

@@ -33,7 +33,7 @@ use guardband_units::QuantityKind;
 const RULE: &str = "unlimited-surge";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for d in &ctx.derived {
+    for d in ctx.derived {
         if !d.limits.is_empty() {
             continue;
         }

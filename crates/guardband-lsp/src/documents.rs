@@ -1,0 +1,173 @@
+//! The open documents: their latest text and version, edited in place.
+//!
+//! Every `didOpen`/`didChange`/`didClose` is applied here synchronously, in
+//! the order the client sent it, before the handler awaits anything; the
+//! analyses read copies of this state, so they can never lose an edit.
+
+use crate::encoding::Encoding;
+use guardband_syntax::LineIndex;
+use std::collections::HashMap;
+use std::path::PathBuf;
+use tower_lsp_server::ls_types::{Range, TextDocumentContentChangeEvent, Uri};
+
+/// One open document.
+#[derive(Debug, Clone)]
+pub struct Document {
+    pub uri: Uri,
+    /// The path the checker knows it by (canonical when it exists on disk).
+    pub path: PathBuf,
+    pub text: String,
+    pub version: i32,
+}
+
+/// Why a change could not be applied.
+#[derive(Debug, PartialEq, Eq)]
+pub enum ChangeError {
+    /// The client changed a document it never opened.
+    NotOpen,
+    /// The version went backwards; the change is ignored.
+    StaleVersion { have: i32, got: i32 },
+}
+
+/// All open documents by URI.
+#[derive(Debug, Default)]
+pub struct Documents {
+    by_uri: HashMap<Uri, Document>,
+}
+
+/// The path of a `file:` URI as the checker names files.
+pub fn uri_path(uri: &Uri) -> PathBuf {
+    let raw = uri
+        .to_file_path()
+        .map(|p| p.into_owned())
+        .unwrap_or_else(|| PathBuf::from(uri.as_str()));
+    raw.canonicalize()
+        .unwrap_or_else(|_| guardband_model::normalize(&raw))
+}
+
+impl Documents {
+    /// Opens (or reopens) a document.
+    pub fn open(&mut self, uri: Uri, text: String, version: i32) {
+        let path = uri_path(&uri);
+        self.by_uri.insert(
+            uri.clone(),
+            Document {
+                uri,
+                path,
+                text,
+                version,
+            },
+        );
+    }
+
+    /// Applies a batch of changes in order. A range is taken in `encoding`;
+    /// reversed ranges are put right and positions past the end clamped.
+    pub fn change(
+        &mut self,
+        uri: &Uri,
+        version: i32,
+        changes: Vec<TextDocumentContentChangeEvent>,
+        encoding: Encoding,
+    ) -> Result<(), ChangeError> {
+        let doc = self.by_uri.get_mut(uri).ok_or(ChangeError::NotOpen)?;
+        if version < doc.version {
+            return Err(ChangeError::StaleVersion {
+                have: doc.version,
+                got: version,
+            });
+        }
+        for change in changes {
+            match change.range {
+                None => doc.text = change.text,
+                Some(range) => {
+                    let (start, end) = byte_range(&doc.text, range, encoding);
+                    doc.text.replace_range(start..end, &change.text);
+                }
+            }
+        }
+        doc.version = version;
+        Ok(())
+    }
+
+    /// Closes a document; returns it if it was open.
+    pub fn close(&mut self, uri: &Uri) -> Option<Document> {
+        self.by_uri.remove(uri)
+    }
+
+    /// The document at `uri`.
+    pub fn get(&self, uri: &Uri) -> Option<&Document> {
+        self.by_uri.get(uri)
+    }
+
+    /// Every open document.
+    pub fn all(&self) -> impl Iterator<Item = &Document> {
+        self.by_uri.values()
+    }
+}
+
+/// A range of LSP positions as byte offsets into `text`, ordered and clamped.
+fn byte_range(text: &str, range: Range, encoding: Encoding) -> (usize, usize) {
+    let index = LineIndex::new(text);
+    let a = encoding.offset(&index, range.start);
+    let b = encoding.offset(&index, range.end);
+    (a.min(b), a.max(b))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tower_lsp_server::ls_types::Position;
+
+    fn edit(l0: u32, c0: u32, l1: u32, c1: u32, text: &str) -> TextDocumentContentChangeEvent {
+        TextDocumentContentChangeEvent {
+            range: Some(Range::new(Position::new(l0, c0), Position::new(l1, c1))),
+            range_length: None,
+            text: text.into(),
+        }
+    }
+
+    fn uri() -> Uri {
+        "file:///nowhere/a.guard".parse().expect("uri")
+    }
+
+    #[test]
+    fn applies_edits_in_utf16_and_utf8() {
+        let mut docs = Documents::default();
+        docs.open(uri(), "x = 1 µF // 𝄞\ny".into(), 1);
+        // After "x = 1 µF // 𝄞" the UTF-16 column is 13 (𝄞 is two units); in UTF-8 it is 17,
+        // so after the inserted "!" it is 18.
+        docs.change(&uri(), 2, vec![edit(0, 13, 0, 13, "!")], Encoding::Utf16)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "x = 1 µF // 𝄞!\ny");
+        docs.change(&uri(), 3, vec![edit(0, 18, 0, 18, "?")], Encoding::Utf8)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "x = 1 µF // 𝄞!?\ny");
+    }
+
+    #[test]
+    fn reversed_and_past_the_end_ranges_are_safe() {
+        let mut docs = Documents::default();
+        docs.open(uri(), "abc\ndef".into(), 1);
+        docs.change(&uri(), 2, vec![edit(0, 2, 0, 1, "X")], Encoding::Utf16)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "aXc\ndef");
+        docs.change(&uri(), 3, vec![edit(9, 9, 12, 0, "!")], Encoding::Utf16)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "aXc\ndef!");
+    }
+
+    #[test]
+    fn unopened_and_stale_changes_are_refused() {
+        let mut docs = Documents::default();
+        assert_eq!(
+            docs.change(&uri(), 1, vec![], Encoding::Utf16),
+            Err(ChangeError::NotOpen)
+        );
+        docs.open(uri(), "a".into(), 5);
+        assert_eq!(
+            docs.change(&uri(), 4, vec![edit(0, 0, 0, 0, "b")], Encoding::Utf16),
+            Err(ChangeError::StaleVersion { have: 5, got: 4 })
+        );
+        assert_eq!(docs.get(&uri()).expect("open").text, "a");
+    }
+}

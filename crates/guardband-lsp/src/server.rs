@@ -1,0 +1,742 @@
+//! The LSP front: protocol handlers over the document store and the engine.
+//!
+//! Threading: handlers run concurrently on the tokio runtime. Document
+//! notifications change [`State`] under a `std` mutex that is never held
+//! across an `.await`, so edits apply in arrival order. Checks and queries
+//! run on the engine's big-stack worker threads ([`Workers`]); a panic there
+//! is caught and answered as an internal error.
+
+use crate::documents::{ChangeError, Document, Documents, uri_path};
+use crate::encoding::Encoding;
+use crate::engine::{Analysis, Workers, root_for};
+use crate::features;
+use serde_json::Value;
+use std::collections::{HashMap, HashSet};
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{Arc, Mutex, MutexGuard};
+use std::time::Duration;
+use tower_lsp_server::jsonrpc::{Error, Result};
+use tower_lsp_server::ls_types::*;
+use tower_lsp_server::{Client, LanguageServer};
+
+/// Settings a client can change.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Settings {
+    /// Quiet time after the last edit before the check runs.
+    pub debounce: Duration,
+    /// Whether inlay hints are shown.
+    pub inlay_hints: bool,
+}
+
+impl Default for Settings {
+    fn default() -> Settings {
+        Settings {
+            debounce: Duration::from_millis(150),
+            inlay_hints: true,
+        }
+    }
+}
+
+impl Settings {
+    /// Applies `{"debounceMs": n, "inlayHints": b}`, also when nested under `guardband`.
+    pub fn update(&mut self, value: &Value) {
+        let value = value.get("guardband").unwrap_or(value);
+        if let Some(ms) = value.get("debounceMs").and_then(Value::as_u64) {
+            self.debounce = Duration::from_millis(ms.min(10_000));
+        }
+        if let Some(on) = value.get("inlayHints").and_then(Value::as_bool) {
+            self.inlay_hints = on;
+        }
+    }
+}
+
+/// What the client said it can do, as far as the server cares.
+#[derive(Debug, Default, Clone)]
+struct ClientSupport {
+    pull_diagnostics: bool,
+    configuration: bool,
+    watch_dynamic: bool,
+    related_information: bool,
+}
+
+/// Mutable server state; see the module documentation for the locking rule.
+#[derive(Default)]
+struct State {
+    docs: Documents,
+    encoding: Encoding,
+    settings: Settings,
+    folders: Vec<PathBuf>,
+    support: ClientSupport,
+    /// The latest analysis per workspace root (one per root, so bounded).
+    analyses: HashMap<PathBuf, Arc<Analysis>>,
+    /// Bumped on every edit under a root; a debounced check runs only if
+    /// no newer edit came in meanwhile.
+    generation: HashMap<PathBuf, u64>,
+    /// Files outside the open set that were given diagnostics (guardband.toml).
+    published_extra: HashSet<Uri>,
+}
+
+/// The language server.
+pub struct Backend {
+    client: Client,
+    state: Arc<Mutex<State>>,
+    workers: Arc<Workers>,
+    shutdown: Arc<AtomicBool>,
+}
+
+/// Most roots the server keeps analyses for; older ones are dropped.
+const MAX_ROOTS: usize = 16;
+
+impl Backend {
+    /// A server talking to `client`; `shutdown` is set when `shutdown` arrives.
+    pub fn new(client: Client, shutdown: Arc<AtomicBool>) -> Backend {
+        Backend {
+            client,
+            state: Arc::new(Mutex::new(State::default())),
+            workers: Workers::start(2),
+            shutdown,
+        }
+    }
+
+    fn state(&self) -> MutexGuard<'_, State> {
+        // A panic while holding the lock leaves consistent data (edits are
+        // whole-string replacements), so a poisoned lock is still usable.
+        self.state.lock().unwrap_or_else(|p| p.into_inner())
+    }
+
+    async fn log(&self, message: impl std::fmt::Display) {
+        self.client.log_message(MessageType::LOG, message).await;
+    }
+
+    /// The open documents under `root`, copied.
+    fn documents_under(state: &State, root: &Path) -> Vec<Document> {
+        state
+            .docs
+            .all()
+            .filter(|d| root_for(&d.path, &state.folders) == root)
+            .cloned()
+            .collect()
+    }
+
+    /// An analysis of the current text under `root`, reusing the cached one
+    /// when nothing changed since.
+    async fn analysis_of_root(&self, root: PathBuf) -> Result<Arc<Analysis>> {
+        let docs = {
+            let state = self.state();
+            let docs = Self::documents_under(&state, &root);
+            if let Some(a) = state.analyses.get(&root)
+                && a.is_current(&docs)
+            {
+                return Ok(Arc::clone(a));
+            }
+            docs
+        };
+        let computed = {
+            let root = root.clone();
+            self.workers
+                .run(move || Analysis::compute(&root, &docs))
+                .await
+        };
+        match computed {
+            Ok(Ok(analysis)) => {
+                let analysis = Arc::new(analysis);
+                let mut state = self.state();
+                if state.analyses.len() >= MAX_ROOTS && !state.analyses.contains_key(&root) {
+                    state.analyses.clear();
+                }
+                state.analyses.insert(root, Arc::clone(&analysis));
+                Ok(analysis)
+            }
+            Ok(Err(why)) => {
+                self.log(format!("guardband: check failed: {why}")).await;
+                Err(Error::internal_error())
+            }
+            Err(panic) => {
+                self.log(format!("guardband: internal error in the check: {panic}"))
+                    .await;
+                Err(Error::internal_error())
+            }
+        }
+    }
+
+    /// The analysis holding `uri` and the file's id in it.
+    async fn analysis_for(
+        &self,
+        uri: &Uri,
+    ) -> Result<Option<(Arc<Analysis>, guardband_model::FileId)>> {
+        let root = {
+            let state = self.state();
+            let Some(doc) = state.docs.get(uri) else {
+                return Ok(None);
+            };
+            root_for(&doc.path, &state.folders)
+        };
+        let analysis = self.analysis_of_root(root).await?;
+        let path = uri_path(uri);
+        Ok(analysis.file_id(&path).map(|id| (analysis, id)))
+    }
+
+    /// Runs a query against the current analysis of `uri` on a worker.
+    async fn query<T: Send + 'static>(
+        &self,
+        uri: &Uri,
+        work: impl FnOnce(&Analysis, guardband_model::FileId, Encoding, Settings) -> T + Send + 'static,
+    ) -> Result<Option<T>> {
+        let Some((analysis, file)) = self.analysis_for(uri).await? else {
+            return Ok(None);
+        };
+        let (encoding, settings) = {
+            let s = self.state();
+            (s.encoding, s.settings)
+        };
+        match self
+            .workers
+            .run(move || work(&analysis, file, encoding, settings))
+            .await
+        {
+            Ok(v) => Ok(Some(v)),
+            Err(panic) => {
+                self.log(format!(
+                    "guardband: internal error answering a request: {panic}"
+                ))
+                .await;
+                Err(Error::internal_error())
+            }
+        }
+    }
+
+    /// Schedules a debounced check of the root holding `path`.
+    fn schedule(&self, path: &Path) {
+        let (root, generation, delay) = {
+            let mut state = self.state();
+            let root = root_for(path, &state.folders);
+            let g = state.generation.entry(root.clone()).or_insert(0);
+            *g += 1;
+            (root, *g, state.settings.debounce)
+        };
+        let backend = self.handle();
+        tokio::spawn(async move {
+            tokio::time::sleep(delay).await;
+            let current = backend.state().generation.get(&root).copied();
+            if current == Some(generation) {
+                backend.publish_root(root).await;
+            }
+        });
+    }
+
+    /// Schedules a check of every root with open documents (a file changed on disk).
+    fn schedule_all(&self) {
+        let paths: Vec<PathBuf> = {
+            let state = self.state();
+            let mut roots: Vec<PathBuf> = state
+                .docs
+                .all()
+                .map(|d| root_for(&d.path, &state.folders))
+                .collect();
+            roots.sort();
+            roots.dedup();
+            state
+                .docs
+                .all()
+                .filter(|d| roots.contains(&root_for(&d.path, &state.folders)))
+                .map(|d| d.path.clone())
+                .collect()
+        };
+        let mut seen = HashSet::new();
+        for p in paths {
+            let root = root_for(&p, &self.state().folders);
+            if seen.insert(root) {
+                self.schedule(&p);
+            }
+        }
+    }
+
+    /// A second handle on the same server, for spawned tasks.
+    fn handle(&self) -> Backend {
+        Backend {
+            client: self.client.clone(),
+            state: Arc::clone(&self.state),
+            workers: Arc::clone(&self.workers),
+            shutdown: Arc::clone(&self.shutdown),
+        }
+    }
+
+    /// Checks a root and publishes diagnostics for each open document whose
+    /// text has not changed since; results for older versions are dropped.
+    async fn publish_root(&self, root: PathBuf) {
+        let pull = self.state().support.pull_diagnostics;
+        let Ok(analysis) = self.analysis_of_root(root).await else {
+            return;
+        };
+        if pull {
+            let _ = self.client.workspace_diagnostic_refresh().await;
+            return;
+        }
+        let (encoding, related, current, previous_extra) = {
+            let state = self.state();
+            let current: HashMap<PathBuf, (Uri, i32)> = state
+                .docs
+                .all()
+                .map(|d| (d.path.clone(), (d.uri.clone(), d.version)))
+                .collect();
+            (
+                state.encoding,
+                state.support.related_information,
+                current,
+                state.published_extra.clone(),
+            )
+        };
+        let mut batches = Vec::new();
+        let mut extra = HashSet::new();
+        for file in &analysis.checked.ws.files {
+            let diagnostics = features::diagnostics::convert(&analysis, file.id, encoding, related);
+            match current.get(&file.path) {
+                Some((uri, version)) if analysis.versions.get(&file.path) == Some(version) => {
+                    batches.push((uri.clone(), diagnostics, Some(*version)));
+                }
+                Some(_) => {}
+                None if file.path.file_name().is_some_and(|n| n == "guardband.toml") => {
+                    if let Some(uri) = analysis.uri(file.id) {
+                        if !diagnostics.is_empty() {
+                            extra.insert(uri.clone());
+                        }
+                        if !diagnostics.is_empty() || previous_extra.contains(&uri) {
+                            batches.push((uri, diagnostics, None));
+                        }
+                    }
+                }
+                None => {}
+            }
+        }
+        self.state().published_extra = extra;
+        for (uri, diagnostics, version) in batches {
+            self.client
+                .publish_diagnostics(uri, diagnostics, version)
+                .await;
+        }
+    }
+
+    /// Reads the client's settings through `workspace/configuration`, if it supports that.
+    async fn pull_configuration(&self) {
+        if !self.state().support.configuration {
+            return;
+        }
+        let items = vec![ConfigurationItem {
+            scope_uri: None,
+            section: Some("guardband".into()),
+        }];
+        if let Ok(values) = self.client.configuration(items).await
+            && let Some(v) = values.first()
+        {
+            self.state().settings.update(v);
+        }
+    }
+}
+
+fn capabilities(encoding: Encoding, pull: bool) -> ServerCapabilities {
+    ServerCapabilities {
+        position_encoding: Some(encoding.kind()),
+        text_document_sync: Some(TextDocumentSyncCapability::Options(
+            TextDocumentSyncOptions {
+                open_close: Some(true),
+                change: Some(TextDocumentSyncKind::INCREMENTAL),
+                save: Some(TextDocumentSyncSaveOptions::Supported(true)),
+                ..Default::default()
+            },
+        )),
+        hover_provider: Some(HoverProviderCapability::Simple(true)),
+        completion_provider: Some(CompletionOptions {
+            trigger_characters: Some(vec![".".into(), "=".into(), " ".into()]),
+            ..Default::default()
+        }),
+        definition_provider: Some(OneOf::Left(true)),
+        references_provider: Some(OneOf::Left(true)),
+        rename_provider: Some(OneOf::Right(RenameOptions {
+            prepare_provider: Some(true),
+            work_done_progress_options: Default::default(),
+        })),
+        document_symbol_provider: Some(OneOf::Left(true)),
+        workspace_symbol_provider: Some(OneOf::Left(true)),
+        semantic_tokens_provider: Some(SemanticTokensServerCapabilities::SemanticTokensOptions(
+            SemanticTokensOptions {
+                legend: features::tokens::legend(),
+                full: Some(SemanticTokensFullOptions::Bool(true)),
+                range: Some(true),
+                ..Default::default()
+            },
+        )),
+        code_action_provider: Some(CodeActionProviderCapability::Options(CodeActionOptions {
+            code_action_kinds: Some(vec![
+                CodeActionKind::QUICKFIX,
+                CodeActionKind::SOURCE_FIX_ALL,
+            ]),
+            ..Default::default()
+        })),
+        document_formatting_provider: Some(OneOf::Left(true)),
+        inlay_hint_provider: Some(OneOf::Left(true)),
+        diagnostic_provider: pull.then(|| {
+            DiagnosticServerCapabilities::Options(DiagnosticOptions {
+                identifier: Some("guardband".into()),
+                inter_file_dependencies: true,
+                workspace_diagnostics: false,
+                ..Default::default()
+            })
+        }),
+        ..Default::default()
+    }
+}
+
+impl LanguageServer for Backend {
+    async fn initialize(&self, params: InitializeParams) -> Result<InitializeResult> {
+        let caps = &params.capabilities;
+        let encoding = Encoding::negotiate(
+            caps.general
+                .as_ref()
+                .and_then(|g| g.position_encodings.as_deref()),
+        );
+        let text = caps.text_document.as_ref();
+        let workspace = caps.workspace.as_ref();
+        let support = ClientSupport {
+            pull_diagnostics: text.is_some_and(|t| t.diagnostic.is_some()),
+            configuration: workspace.and_then(|w| w.configuration) == Some(true),
+            watch_dynamic: workspace
+                .and_then(|w| w.did_change_watched_files.as_ref())
+                .and_then(|d| d.dynamic_registration)
+                == Some(true),
+            related_information: text
+                .and_then(|t| t.publish_diagnostics.as_ref())
+                .and_then(|p| p.related_information)
+                .unwrap_or(true),
+        };
+        let mut folders: Vec<PathBuf> = params
+            .workspace_folders
+            .iter()
+            .flatten()
+            .map(|f| uri_path(&f.uri))
+            .collect();
+        #[allow(deprecated)]
+        if folders.is_empty()
+            && let Some(root) = &params.root_uri
+        {
+            folders.push(uri_path(root));
+        }
+        let pull = support.pull_diagnostics;
+        {
+            let mut state = self.state();
+            state.encoding = encoding;
+            state.support = support;
+            state.folders = folders;
+            if let Some(options) = &params.initialization_options {
+                state.settings.update(options);
+            }
+        }
+        Ok(InitializeResult {
+            capabilities: capabilities(encoding, pull),
+            server_info: Some(ServerInfo {
+                name: "guardband".into(),
+                version: Some(env!("CARGO_PKG_VERSION").into()),
+            }),
+            offset_encoding: None,
+        })
+    }
+
+    async fn initialized(&self, _: InitializedParams) {
+        if self.state().support.watch_dynamic {
+            let options = DidChangeWatchedFilesRegistrationOptions {
+                watchers: ["**/*.guard", "**/guardband.toml"]
+                    .into_iter()
+                    .map(|glob| FileSystemWatcher {
+                        glob_pattern: GlobPattern::String(glob.into()),
+                        kind: None,
+                    })
+                    .collect(),
+            };
+            let registration = Registration {
+                id: "guardband-watch".into(),
+                method: "workspace/didChangeWatchedFiles".into(),
+                register_options: serde_json::to_value(options).ok(),
+            };
+            if let Err(e) = self.client.register_capability(vec![registration]).await {
+                self.log(format!("guardband: file watching not registered: {e}"))
+                    .await;
+            }
+        }
+        self.pull_configuration().await;
+    }
+
+    async fn shutdown(&self) -> Result<()> {
+        self.shutdown.store(true, Ordering::SeqCst);
+        Ok(())
+    }
+
+    async fn did_open(&self, params: DidOpenTextDocumentParams) {
+        let doc = params.text_document;
+        let path = uri_path(&doc.uri);
+        self.state().docs.open(doc.uri, doc.text, doc.version);
+        self.schedule(&path);
+    }
+
+    async fn did_change(&self, params: DidChangeTextDocumentParams) {
+        let uri = params.text_document.uri;
+        let outcome = {
+            let mut state = self.state();
+            let encoding = state.encoding;
+            state.docs.change(
+                &uri,
+                params.text_document.version,
+                params.content_changes,
+                encoding,
+            )
+        };
+        match outcome {
+            Ok(()) => self.schedule(&uri_path(&uri)),
+            Err(ChangeError::NotOpen) => {
+                self.log(format!(
+                    "guardband: ignored a change to {}, which is not open",
+                    uri.as_str()
+                ))
+                .await
+            }
+            Err(ChangeError::StaleVersion { have, got }) => {
+                self.log(format!(
+                    "guardband: ignored version {got} of {}, already at {have}",
+                    uri.as_str()
+                ))
+                .await
+            }
+        }
+    }
+
+    async fn did_save(&self, params: DidSaveTextDocumentParams) {
+        self.schedule(&uri_path(&params.text_document.uri));
+    }
+
+    async fn did_close(&self, params: DidCloseTextDocumentParams) {
+        let uri = params.text_document.uri;
+        let closed = self.state().docs.close(&uri);
+        if let Some(doc) = closed {
+            if !self.state().support.pull_diagnostics {
+                self.client.publish_diagnostics(uri, Vec::new(), None).await;
+            }
+            self.schedule(&doc.path);
+        }
+    }
+
+    async fn did_change_watched_files(&self, _: DidChangeWatchedFilesParams) {
+        // Files on disk changed: no cached analysis can be trusted.
+        self.state().analyses.clear();
+        self.schedule_all();
+    }
+
+    async fn did_change_configuration(&self, params: DidChangeConfigurationParams) {
+        let before = self.state().settings;
+        if params.settings.is_null() {
+            self.pull_configuration().await;
+        } else {
+            self.state().settings.update(&params.settings);
+        }
+        let after = self.state().settings;
+        if before.inlay_hints != after.inlay_hints {
+            let _ = self.client.inlay_hint_refresh().await;
+        }
+    }
+
+    async fn diagnostic(
+        &self,
+        params: DocumentDiagnosticParams,
+    ) -> Result<DocumentDiagnosticReportResult> {
+        let related = self.state().support.related_information;
+        let items = self
+            .query(&params.text_document.uri, move |a, file, enc, _| {
+                features::diagnostics::convert(a, file, enc, related)
+            })
+            .await?
+            .unwrap_or_default();
+        Ok(DocumentDiagnosticReportResult::Report(
+            DocumentDiagnosticReport::Full(RelatedFullDocumentDiagnosticReport {
+                related_documents: None,
+                full_document_diagnostic_report: FullDocumentDiagnosticReport {
+                    result_id: None,
+                    items,
+                },
+            }),
+        ))
+    }
+
+    async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
+        let p = params.text_document_position_params;
+        Ok(self
+            .query(&p.text_document.uri, move |a, file, enc, _| {
+                features::hover::hover(a, file, p.position, enc)
+            })
+            .await?
+            .flatten())
+    }
+
+    async fn goto_definition(
+        &self,
+        params: GotoDefinitionParams,
+    ) -> Result<Option<GotoDefinitionResponse>> {
+        let p = params.text_document_position_params;
+        Ok(self
+            .query(&p.text_document.uri, move |a, file, enc, _| {
+                features::navigate::definition(a, file, p.position, enc)
+            })
+            .await?
+            .flatten()
+            .map(GotoDefinitionResponse::Scalar))
+    }
+
+    async fn references(&self, params: ReferenceParams) -> Result<Option<Vec<Location>>> {
+        let p = params.text_document_position;
+        let include = params.context.include_declaration;
+        Ok(self
+            .query(&p.text_document.uri, move |a, file, enc, _| {
+                features::navigate::references(a, file, p.position, include, enc)
+            })
+            .await?
+            .flatten())
+    }
+
+    async fn prepare_rename(
+        &self,
+        params: TextDocumentPositionParams,
+    ) -> Result<Option<PrepareRenameResponse>> {
+        Ok(self
+            .query(&params.text_document.uri, move |a, file, enc, _| {
+                features::navigate::prepare_rename(a, file, params.position, enc)
+            })
+            .await?
+            .flatten())
+    }
+
+    async fn rename(&self, params: RenameParams) -> Result<Option<WorkspaceEdit>> {
+        let p = params.text_document_position;
+        let new_name = params.new_name;
+        match self
+            .query(&p.text_document.uri, move |a, file, enc, _| {
+                features::navigate::rename(a, file, p.position, &new_name, enc)
+            })
+            .await?
+        {
+            None => Ok(None),
+            Some(Ok(edit)) => Ok(edit),
+            Some(Err(why)) => Err(Error::invalid_params(why)),
+        }
+    }
+
+    async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
+        let p = params.text_document_position;
+        Ok(self
+            .query(&p.text_document.uri, move |a, file, enc, _| {
+                features::complete::complete(a, file, p.position, enc)
+            })
+            .await?
+            .map(CompletionResponse::Array))
+    }
+
+    async fn document_symbol(
+        &self,
+        params: DocumentSymbolParams,
+    ) -> Result<Option<DocumentSymbolResponse>> {
+        Ok(self
+            .query(&params.text_document.uri, |a, file, enc, _| {
+                features::symbols::document(a, file, enc)
+            })
+            .await?
+            .map(DocumentSymbolResponse::Nested))
+    }
+
+    async fn symbol(
+        &self,
+        params: WorkspaceSymbolParams,
+    ) -> Result<Option<WorkspaceSymbolResponse>> {
+        let roots: Vec<PathBuf> = {
+            let state = self.state();
+            let mut roots: Vec<PathBuf> = state
+                .docs
+                .all()
+                .map(|d| root_for(&d.path, &state.folders))
+                .collect();
+            roots.sort();
+            roots.dedup();
+            roots
+        };
+        let encoding = self.state().encoding;
+        let mut out = Vec::new();
+        for root in roots {
+            let analysis = self.analysis_of_root(root).await?;
+            let query = params.query.clone();
+            let found = self
+                .workers
+                .run(move || features::symbols::workspace(&analysis, &query, encoding))
+                .await
+                .map_err(|_| Error::internal_error())?;
+            out.extend(found);
+        }
+        Ok(Some(WorkspaceSymbolResponse::Nested(out)))
+    }
+
+    async fn semantic_tokens_full(
+        &self,
+        params: SemanticTokensParams,
+    ) -> Result<Option<SemanticTokensResult>> {
+        Ok(self
+            .query(&params.text_document.uri, |a, file, enc, _| {
+                features::tokens::tokens(a, file, None, enc)
+            })
+            .await?
+            .map(SemanticTokensResult::Tokens))
+    }
+
+    async fn semantic_tokens_range(
+        &self,
+        params: SemanticTokensRangeParams,
+    ) -> Result<Option<SemanticTokensRangeResult>> {
+        let range = params.range;
+        Ok(self
+            .query(&params.text_document.uri, move |a, file, enc, _| {
+                features::tokens::tokens(a, file, Some(range), enc)
+            })
+            .await?
+            .map(SemanticTokensRangeResult::Tokens))
+    }
+
+    async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
+        let uri = params.text_document.uri.clone();
+        self.query(&uri, move |a, file, enc, _| {
+            features::actions::code_actions(a, file, &params, enc)
+        })
+        .await
+    }
+
+    async fn formatting(&self, params: DocumentFormattingParams) -> Result<Option<Vec<TextEdit>>> {
+        let text = {
+            let state = self.state();
+            match state.docs.get(&params.text_document.uri) {
+                Some(d) => d.text.clone(),
+                None => return Ok(None),
+            }
+        };
+        let encoding = self.state().encoding;
+        let edits = self
+            .workers
+            .run(move || features::format::edits(&text, encoding))
+            .await
+            .map_err(|_| Error::internal_error())?;
+        Ok(edits)
+    }
+
+    async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
+        let range = params.range;
+        self.query(&params.text_document.uri, move |a, file, enc, settings| {
+            if settings.inlay_hints {
+                features::inlay::hints(a, file, range, enc)
+            } else {
+                Vec::new()
+            }
+        })
+        .await
+    }
+}

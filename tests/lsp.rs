@@ -1,0 +1,973 @@
+//! End to end: the real `guardband lsp` binary over stdio, one test per
+//! feature, plus rapid edits, both position encodings and malformed input.
+
+mod common;
+mod lsp_client;
+
+use common::{check_json, guardband, root, temp_dir};
+use lsp_client::{Client, frame, uri};
+use serde_json::{Value, json};
+use std::path::{Path, PathBuf};
+use std::time::Duration;
+
+/// Copies `examples/` into a fresh folder the test may change.
+fn examples_copy(name: &str) -> PathBuf {
+    let dir = temp_dir(name);
+    copy_dir(&root().join("examples"), &dir);
+    dir.canonicalize().expect("canonical")
+}
+
+fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("mkdir");
+    for entry in std::fs::read_dir(from).expect("read dir") {
+        let entry = entry.expect("entry");
+        let target = to.join(entry.file_name());
+        if entry.file_type().expect("type").is_dir() {
+            copy_dir(&entry.path(), &target);
+        } else {
+            std::fs::copy(entry.path(), &target).expect("copy");
+        }
+    }
+}
+
+/// Line and UTF-16 column of the `nth` occurrence of `needle`, plus `shift` columns.
+fn pos16(text: &str, needle: &str, nth: usize, shift: u32) -> Value {
+    let offset = text
+        .match_indices(needle)
+        .nth(nth)
+        .unwrap_or_else(|| panic!("`{needle}` not found"))
+        .0;
+    let line_start = text[..offset].rfind('\n').map(|i| i + 1).unwrap_or(0);
+    let line = text[..offset].matches('\n').count();
+    let col: usize = text[line_start..offset].chars().map(char::len_utf16).sum();
+    json!({ "line": line, "character": col as u32 + shift })
+}
+
+/// Line and UTF-8 column of the `nth` occurrence of `needle`.
+fn pos8(text: &str, needle: &str, nth: usize) -> Value {
+    let offset = text.match_indices(needle).nth(nth).expect("found").0;
+    let line_start = text[..offset].rfind('\n').map(|i| i + 1).unwrap_or(0);
+    let line = text[..offset].matches('\n').count();
+    json!({ "line": line, "character": offset - line_start })
+}
+
+fn doc(uri: &str) -> Value {
+    json!({ "uri": uri })
+}
+
+fn start(dir: &Path, caps: Value) -> Client {
+    let mut client = Client::start(dir);
+    client.initialize(dir, caps, json!({ "debounceMs": 20 }));
+    client
+}
+
+/// What `guardband check --format json` reports for one file, as
+/// (rule, severity, start line, start column, end line, end column, message), 0-based.
+fn check_tuples(dir: &Path, file: &Path) -> Vec<(String, String, u64, u64, u64, u64, String)> {
+    let (_, report) = check_json(dir, &[file.to_str().expect("utf-8 path")]);
+    let display = file
+        .strip_prefix(dir)
+        .expect("inside")
+        .to_string_lossy()
+        .replace('\\', "/");
+    let mut out: Vec<_> = report["diagnostics"]
+        .as_array()
+        .expect("array")
+        .iter()
+        .filter(|d| d["file"] == display.as_str())
+        .map(|d| {
+            let r = &d["range"];
+            (
+                d["rule"].as_str().unwrap_or("").to_string(),
+                d["severity"].as_str().unwrap_or("").to_string(),
+                r["start"]["line"].as_u64().unwrap_or(0) - 1,
+                r["start"]["column"].as_u64().unwrap_or(0) - 1,
+                r["end"]["line"].as_u64().unwrap_or(0) - 1,
+                r["end"]["column"].as_u64().unwrap_or(0) - 1,
+                d["message"].as_str().unwrap_or("").to_string(),
+            )
+        })
+        .collect();
+    out.sort();
+    out
+}
+
+/// The same tuples from LSP diagnostics (columns are UTF-16; the texts compared have no astral characters).
+fn lsp_tuples(diags: &[Value]) -> Vec<(String, String, u64, u64, u64, u64, String)> {
+    let mut out: Vec<_> = diags
+        .iter()
+        .map(|d| {
+            let r = &d["range"];
+            let severity = match d["severity"].as_u64() {
+                Some(1) => "error",
+                Some(2) => "warning",
+                Some(3) => "info",
+                _ => "hint",
+            };
+            let message = d["message"].as_str().unwrap_or("");
+            let message = message.split("\nhelp: ").next().unwrap_or("").to_string();
+            (
+                d["code"].as_str().unwrap_or("").to_string(),
+                severity.to_string(),
+                r["start"]["line"].as_u64().unwrap_or(0),
+                r["start"]["character"].as_u64().unwrap_or(0),
+                r["end"]["line"].as_u64().unwrap_or(0),
+                r["end"]["character"].as_u64().unwrap_or(0),
+                message,
+            )
+        })
+        .collect();
+    out.sort();
+    out
+}
+
+#[test]
+fn diagnostics_on_open_equal_the_command_line_and_clear_on_close() {
+    let dir = examples_copy("lsp-diagnostics");
+    let path = dir.join("flawed/aux_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let diags = client.diagnostics(&u, 1);
+    assert!(!diags.is_empty());
+    assert_eq!(lsp_tuples(&diags), check_tuples(&dir, &path));
+    assert!(diags.iter().all(|d| d["source"] == "guardband"));
+    // Labels other than the primary one come as related information.
+    assert!(diags.iter().any(|d| d["relatedInformation"].is_array()));
+    client.notify("textDocument/didClose", json!({ "textDocument": doc(&u) }));
+    let cleared = client.wait_for(|m| {
+        m["method"] == "textDocument/publishDiagnostics"
+            && m["params"]["uri"] == u.as_str()
+            && m["params"]["diagnostics"] == json!([])
+    });
+    assert!(cleared["params"]["version"].is_null());
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn rapid_incremental_edits_end_equal_to_a_fresh_check() {
+    let dir = examples_copy("lsp-rapid");
+    let path = dir.join("flawed/wake_rail.guard");
+    let original = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, "", 1);
+    // Type the file in 500 incremental edits, each appending the next chunk at the end.
+    let chars: Vec<char> = original.chars().collect();
+    let chunk = (chars.len() / 500).max(1);
+    let mut typed = String::new();
+    let mut version = 1;
+    for piece in chars.chunks(chunk) {
+        let end = pos_end(&typed);
+        let piece: String = piece.iter().collect();
+        version += 1;
+        client.notify(
+            "textDocument/didChange",
+            json!({
+                "textDocument": { "uri": u, "version": version },
+                "contentChanges": [{ "range": { "start": end, "end": end }, "text": piece }],
+            }),
+        );
+        typed.push_str(&piece);
+    }
+    assert_eq!(typed, original);
+    assert!(version >= 400, "{version} edits");
+    let diags = client.diagnostics(&u, version);
+    assert_eq!(lsp_tuples(&diags), check_tuples(&dir, &path));
+    assert!(!diags.is_empty(), "wake_rail has findings");
+    // No diagnostics for an older version arrive after the final ones.
+    assert!(
+        client
+            .arrives_within(Duration::from_millis(300), |m| {
+                m["method"] == "textDocument/publishDiagnostics"
+                    && m["params"]["version"]
+                        .as_i64()
+                        .is_some_and(|v| v < i64::from(version))
+            })
+            .is_none()
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+/// The position just past the end of `text`, in UTF-16.
+fn pos_end(text: &str) -> Value {
+    let line = text.matches('\n').count();
+    let last = text.rsplit('\n').next().unwrap_or("");
+    json!({ "line": line, "character": last.chars().map(char::len_utf16).sum::<usize>() })
+}
+
+#[test]
+fn hover_shows_values_windows_and_conductor_breakdowns() {
+    let dir = examples_copy("lsp-hover");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    client.diagnostics(&u, 1);
+    let hover = |client: &mut Client, at: Value| -> String {
+        let r = client.request(
+            "textDocument/hover",
+            json!({ "textDocument": doc(&u), "position": at }),
+        );
+        r["contents"]["value"].as_str().unwrap_or("").to_string()
+    };
+    let threshold = hover(&mut client, pos16(&text, "threshold   = ratio", 0, 2));
+    for want in [
+        "min",
+        "nominal",
+        "max",
+        "Limit window",
+        "worst case",
+        "statistical",
+        "share",
+        "rated load",
+    ] {
+        assert!(
+            threshold.contains(want),
+            "threshold hover lacks `{want}`:\n{threshold}"
+        );
+    }
+    // A reference in a value shows the value it names: `reference` is 100 uA ± the trimmed tolerance.
+    let reference = hover(&mut client, pos16(&text, "ratio * reference", 0, 9));
+    assert!(reference.contains("100 uA"), "{reference}");
+    assert!(
+        reference.contains("wren180"),
+        "tolerance source named: {reference}"
+    );
+    let conductor = hover(&mut client, pos16(&text, "conductor pass_source", 0, 12));
+    for want in [
+        "Conductor rating",
+        "width 260 um",
+        "thickness",
+        "current density",
+        "rating:",
+        "worst current",
+        "margin",
+    ] {
+        assert!(
+            conductor.contains(want),
+            "conductor hover lacks `{want}`:\n{conductor}"
+        );
+    }
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn hover_on_a_finding_gives_the_rule_and_the_fix() {
+    let dir = examples_copy("lsp-hover-finding");
+    let path = dir.join("flawed/aux_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let diags = client.diagnostics(&u, 1);
+    let under = diags
+        .iter()
+        .find(|d| d["code"] == "conductor-under-rated")
+        .expect("finding");
+    let r = client.request(
+        "textDocument/hover",
+        json!({ "textDocument": doc(&u), "position": under["range"]["start"] }),
+    );
+    let text = r["contents"]["value"].as_str().unwrap_or("");
+    assert!(text.contains("conductor-under-rated"), "{text}");
+    assert!(text.contains("How to fix"), "{text}");
+    assert!(text.contains("Widen the metal"), "{text}");
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn inlay_hints_follow_derived_values_and_can_be_turned_off() {
+    let dir = examples_copy("lsp-inlay");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    client.diagnostics(&u, 1);
+    let whole = json!({ "start": { "line": 0, "character": 0 }, "end": pos_end(&text) });
+    let hints = client.request(
+        "textDocument/inlayHint",
+        json!({ "textDocument": doc(&u), "range": whole }),
+    );
+    let hints = hints.as_array().expect("hints");
+    let threshold_line = pos16(&text, "threshold   = ratio", 0, 0)["line"].clone();
+    let on_line: Vec<&Value> = hints
+        .iter()
+        .filter(|h| h["position"]["line"] == threshold_line)
+        .collect();
+    assert_eq!(on_line.len(), 1, "{hints:?}");
+    let label = on_line[0]["label"].as_str().expect("label");
+    // ratio × reference = 2000 × 100 uA ± 8 %: about 184 mA .. 216 mA.
+    assert!(
+        label.starts_with("⇒ ") && label.contains("mA .."),
+        "{label}"
+    );
+    assert!(hints.iter().any(|h| {
+        h["label"]
+            .as_str()
+            .is_some_and(|l| l.starts_with("window "))
+    }));
+    client.notify(
+        "workspace/didChangeConfiguration",
+        json!({ "settings": { "guardband": { "inlayHints": false } } }),
+    );
+    let off = client.request(
+        "textDocument/inlayHint",
+        json!({ "textDocument": doc(&u), "range": whole }),
+    );
+    assert_eq!(off, json!([]));
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn definition_references_and_rename_across_imports() {
+    let dir = examples_copy("lsp-navigate");
+    let path = dir.join("sensor_rail.guard");
+    let process = dir.join("process/wren180.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    client.diagnostics(&u, 1);
+    // `wren180.top_metal` in a conductor leads into the imported process file.
+    let def = client.request(
+        "textDocument/definition",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "wren180.top_metal", 0, 9) }),
+    );
+    assert_eq!(def["uri"], uri(&process).as_str());
+    let process_text = std::fs::read_to_string(&process).expect("read");
+    assert_eq!(
+        def["range"]["start"],
+        pos16(&process_text, "top_metal", 0, 0)
+    );
+    // The `use` path leads to the file.
+    let used = client.request(
+        "textDocument/definition",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "process/wren180", 0, 2) }),
+    );
+    assert_eq!(used["uri"], uri(&process).as_str());
+    // References of the limit `sensed`: its name and the analysis' `loop = sensed`.
+    let refs = client.request(
+        "textDocument/references",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "limit sensed", 0, 7), "context": { "includeDeclaration": true } }),
+    );
+    let refs = refs.as_array().expect("refs");
+    assert_eq!(refs.len(), 2, "{refs:?}");
+    // Rename the pin `vout`: its name, `pin = vout` twice, `carries = vout` twice and `force vout`.
+    let prepare = client.request(
+        "textDocument/prepareRename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5) }),
+    );
+    assert_eq!(prepare["start"], pos16(&text, "pin vout", 0, 4));
+    let edit = client.request(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5), "newName": "out_pin" }),
+    );
+    let edits = edit["changes"][u.as_str()].as_array().expect("edits");
+    assert_eq!(edits.len(), 6, "{edits:?}");
+    // A name already taken in the regulator is refused.
+    let clash = client.request_full(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5), "newName": "sensed" }),
+    );
+    assert!(
+        clash["error"]["message"]
+            .as_str()
+            .unwrap_or("")
+            .contains("already has a block named `sensed`"),
+        "{clash}"
+    );
+    // Keyword blocks and fields cannot be renamed.
+    let field = client.request_full(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "ratio      ", 0, 1), "newName": "gain" }),
+    );
+    assert!(field["error"].is_object(), "{field}");
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn completion_offers_fields_units_names_and_choices() {
+    let dir = examples_copy("lsp-complete");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    client.diagnostics(&u, 1);
+    let labels = |client: &mut Client, at: Value| -> Vec<String> {
+        let r = client.request(
+            "textDocument/completion",
+            json!({ "textDocument": doc(&u), "position": at }),
+        );
+        r.as_array()
+            .expect("items")
+            .iter()
+            .map(|i| i["label"].as_str().unwrap_or("").to_string())
+            .collect()
+    };
+    // At the start of a line inside `limit sensed`: its fields, with snippets.
+    let fields = labels(&mut client, pos16(&text, "        ratio      ", 0, 0));
+    for want in ["ratio", "reference", "mismatch", "scheme"] {
+        assert!(fields.contains(&want.to_string()), "{fields:?}");
+    }
+    // After `scheme = `: the schemes.
+    let choices = labels(&mut client, pos16(&text, "scheme      = replica", 0, 14));
+    assert!(
+        choices.contains(&"replica".to_string())
+            && choices.contains(&"undervoltage_fixed".to_string()),
+        "{choices:?}"
+    );
+    // After a number in a capacitance: capacitance units only.
+    let edited = text.replace("capacitance = 1 uF ± 20 %", "capacitance = 1 u");
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": u, "version": 2 }, "contentChanges": [{ "text": edited }] }),
+    );
+    let units = labels(&mut client, pos16(&edited, "capacitance = 1 u", 0, 17));
+    assert!(units.contains(&"uF".to_string()), "{units:?}");
+    assert!(!units.contains(&"uA".to_string()), "{units:?}");
+    // After `=` in a value: names in scope, and after a dot, the members.
+    let names = labels(&mut client, pos16(&edited, "ratio * reference", 0, 0));
+    assert!(
+        names.contains(&"ratio".to_string()) && names.contains(&"wren180".to_string()),
+        "{names:?}"
+    );
+    let dotted = labels(&mut client, pos16(&edited, "wren180.top_metal", 0, 8));
+    assert!(dotted.contains(&"top_metal".to_string()), "{dotted:?}");
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn document_and_workspace_symbols() {
+    let dir = examples_copy("lsp-symbols");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let outline = client.request(
+        "textDocument/documentSymbol",
+        json!({ "textDocument": doc(&u) }),
+    );
+    let outline = outline.as_array().expect("symbols");
+    assert_eq!(outline.len(), 1);
+    assert_eq!(outline[0]["name"], "sensor_rail");
+    let children: Vec<&str> = outline[0]["children"]
+        .as_array()
+        .expect("children")
+        .iter()
+        .map(|c| c["name"].as_str().unwrap_or(""))
+        .collect();
+    for want in [
+        "vout",
+        "pass",
+        "sensed",
+        "vout_short",
+        "limit_loop",
+        "pass_source",
+    ] {
+        assert!(children.contains(&want), "{children:?}");
+    }
+    let found = client.request("workspace/symbol", json!({ "query": "top_metal" }));
+    let found = found.as_array().expect("symbols");
+    assert!(
+        found.iter().any(|s| s["name"] == "top_metal"
+            && s["location"]["uri"]
+                .as_str()
+                .is_some_and(|u| u.ends_with("wren180.guard"))),
+        "{found:?}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn semantic_tokens_full_and_range() {
+    let dir = temp_dir("lsp-tokens");
+    let path = dir.join("t.guard");
+    let text =
+        "// note µ\nregulator r {\n    load = 0 mA .. 2 mA  // Ω\n    output = 1 V ± 2 %\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    let mut client = start(&dir, json!({}));
+    client.open(&u, text, 1);
+    let full = client.request(
+        "textDocument/semanticTokens/full",
+        json!({ "textDocument": doc(&u) }),
+    );
+    let data: Vec<u64> = full["data"]
+        .as_array()
+        .expect("data")
+        .iter()
+        .map(|v| v.as_u64().unwrap_or(0))
+        .collect();
+    assert_eq!(data.len() % 5, 0);
+    // Decode to (line, column, length, type).
+    let mut tokens = Vec::new();
+    let (mut line, mut col) = (0, 0);
+    for t in data.chunks(5) {
+        if t[0] > 0 {
+            line += t[0];
+            col = t[1];
+        } else {
+            col += t[1];
+        }
+        tokens.push((line, col, t[2], t[3]));
+    }
+    // Legend order: keyword 0, class 1, property 2, variable 3, enumMember 4, number 5, type 6, operator 7, string 8, comment 9.
+    assert_eq!(
+        tokens[0],
+        (0, 0, 9, 9),
+        "the comment, 9 UTF-16 units with µ"
+    );
+    assert!(
+        tokens.contains(&(1, 0, 9, 0)),
+        "`regulator` keyword: {tokens:?}"
+    );
+    assert!(tokens.contains(&(1, 10, 1, 1)), "`r` block name");
+    assert!(tokens.contains(&(2, 4, 4, 2)), "`load` field");
+    assert!(tokens.contains(&(2, 11, 1, 5)), "`0` number: {tokens:?}");
+    assert!(tokens.contains(&(2, 13, 2, 6)), "`mA` unit: {tokens:?}");
+    assert!(tokens.contains(&(3, 17, 1, 7)), "`±` tolerance");
+    let range = client.request(
+        "textDocument/semanticTokens/range",
+        json!({ "textDocument": doc(&u), "range": { "start": { "line": 3, "character": 0 }, "end": { "line": 3, "character": 99 } } }),
+    );
+    let n = range["data"].as_array().expect("data").len() / 5;
+    assert_eq!(
+        n, 6,
+        "output = 1 V ± 2 %: field, number, unit, ±, number, unit"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+/// Applies LSP text edits (UTF-16 ranges) to a text.
+fn apply(text: &str, edits: &[Value]) -> String {
+    let offset = |p: &Value| -> usize {
+        let line = p["line"].as_u64().unwrap_or(0) as usize;
+        let character = p["character"].as_u64().unwrap_or(0) as usize;
+        let start: usize = text.split_inclusive('\n').take(line).map(str::len).sum();
+        let rest = &text[start.min(text.len())..];
+        let mut units = 0;
+        for (i, c) in rest.char_indices() {
+            if units >= character || c == '\n' {
+                return start + i;
+            }
+            units += c.len_utf16();
+        }
+        text.len()
+    };
+    let mut sorted: Vec<&Value> = edits.iter().collect();
+    sorted.sort_by_key(|e| std::cmp::Reverse(offset(&e["range"]["start"])));
+    let mut out = text.to_string();
+    for e in sorted {
+        let (a, b) = (offset(&e["range"]["start"]), offset(&e["range"]["end"]));
+        out.replace_range(a..b, e["newText"].as_str().unwrap_or(""));
+    }
+    out
+}
+
+#[test]
+fn quick_fixes_size_metal_insert_fault_cases_and_waive() {
+    let dir = examples_copy("lsp-actions");
+    let path = dir.join("flawed/aux_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let diags = client.diagnostics(&u, 1);
+    let actions_at = |client: &mut Client, code: &str| -> Vec<Value> {
+        let d = diags
+            .iter()
+            .find(|d| d["code"] == code)
+            .unwrap_or_else(|| panic!("{code}"))
+            .clone();
+        let r = client.request(
+            "textDocument/codeAction",
+            json!({ "textDocument": doc(&u), "range": d["range"], "context": { "diagnostics": [d] } }),
+        );
+        r.as_array().expect("actions").clone()
+    };
+    let metal = actions_at(&mut client, "conductor-under-rated");
+    let widen = metal
+        .iter()
+        .find(|a| {
+            a["title"]
+                .as_str()
+                .is_some_and(|t| t.starts_with("Set `width`"))
+        })
+        .expect("a width fix");
+    assert_eq!(widen["kind"], "quickfix");
+    assert!(metal.iter().any(|a| {
+        a["title"]
+            .as_str()
+            .is_some_and(|t| t.starts_with("Waive `conductor-under-rated`"))
+    }));
+    let fixed = apply(
+        &text,
+        widen["edit"]["changes"][u.as_str()]
+            .as_array()
+            .expect("edits"),
+    );
+    std::fs::write(&path, &fixed).expect("write");
+    let after = check_tuples(&dir, &path);
+    assert!(
+        !after.iter().any(|t| t.0 == "conductor-under-rated"),
+        "{after:?}"
+    );
+    std::fs::write(&path, &text).expect("restore");
+
+    let missing = actions_at(&mut client, "missing-fault-case");
+    let add = missing
+        .iter()
+        .find(|a| {
+            a["title"]
+                .as_str()
+                .is_some_and(|t| t.starts_with("Add `fault"))
+        })
+        .expect("a skeleton");
+    let added = apply(
+        &text,
+        add["edit"]["changes"][u.as_str()]
+            .as_array()
+            .expect("edits"),
+    );
+    assert!(
+        added.contains(
+            "    fault vout_startup {\n        pin   = vout\n        event = startup\n    }\n"
+        ),
+        "{added}"
+    );
+    std::fs::write(&path, &added).expect("write");
+    let after = check_tuples(&dir, &path);
+    assert!(
+        !after
+            .iter()
+            .any(|t| t.0 == "missing-fault-case" || t.0 == "syntax"),
+        "{after:?}"
+    );
+
+    // Fix-all applies every safe fix at once and the file still checks cleanly of those rules.
+    let all = client.request(
+        "textDocument/codeAction",
+        json!({ "textDocument": doc(&u), "range": { "start": { "line": 0, "character": 0 }, "end": { "line": 0, "character": 0 } },
+                "context": { "diagnostics": [], "only": ["source.fixAll"] } }),
+    );
+    let all = all.as_array().expect("actions");
+    assert_eq!(all.len(), 1, "{all:?}");
+    let everything = apply(
+        &text,
+        all[0]["edit"]["changes"][u.as_str()]
+            .as_array()
+            .expect("edits"),
+    );
+    std::fs::write(&path, &everything).expect("write");
+    let after = check_tuples(&dir, &path);
+    assert!(
+        !after.iter().any(
+            |t| ["conductor-under-rated", "missing-fault-case", "syntax"].contains(&t.0.as_str())
+        ),
+        "{after:?}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn formatting_matches_guardband_fmt_and_keeps_meaning() {
+    let dir = temp_dir("lsp-format");
+    std::fs::write(dir.join("guardband.toml"), "").expect("config");
+    let path = dir.join("f.guard");
+    let messy = "regulator r {\n  load=0 mA .. 2 mA\n      junction_max = 125 °C   // hot\n  pin p { off_chip = true }\n}\n";
+    std::fs::write(&path, messy).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    let mut client = start(&dir, json!({}));
+    client.open(&u, messy, 1);
+    let before = lsp_tuples(&client.diagnostics(&u, 1));
+    let edits = client.request(
+        "textDocument/formatting",
+        json!({ "textDocument": doc(&u), "options": { "tabSize": 4, "insertSpaces": true } }),
+    );
+    let formatted = apply(messy, edits.as_array().expect("edits"));
+    let run = guardband(&dir, &["fmt", "f.guard"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    assert_eq!(std::fs::read_to_string(&path).expect("read"), formatted);
+    assert_eq!(guardband(&dir, &["fmt", "--check", "f.guard"]).code, 0);
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": u, "version": 2 }, "contentChanges": [{ "text": formatted }] }),
+    );
+    let after = lsp_tuples(&client.diagnostics(&u, 2));
+    // Same findings (rules and messages); only positions may move.
+    let strip = |v: &[(String, String, u64, u64, u64, u64, String)]| -> Vec<(String, String)> {
+        v.iter().map(|t| (t.0.clone(), t.6.clone())).collect()
+    };
+    assert_eq!(strip(&before), strip(&after));
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn utf8_and_utf16_sessions_agree_on_non_ascii_text() {
+    let dir = temp_dir("lsp-encoding");
+    let path = dir.join("e.guard");
+    let text = "// µ Ω ± ° 𝄞 and more 𝄞\nregulator r { /* */ }\nregulator q {\n    junction_max = 125 °C  // 𝄞 °\n    ambient = -20 °C .. 70 °C  // 𝄞\n    bogus = 1 µF\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    for (caps, expected_kind) in [
+        (
+            json!({ "general": { "positionEncodings": ["utf-8", "utf-16"] } }),
+            "utf-8",
+        ),
+        (json!({}), "utf-16"),
+    ] {
+        let mut client = Client::start(&dir);
+        let init = client.initialize(&dir, caps, json!({ "debounceMs": 20 }));
+        assert_eq!(init["capabilities"]["positionEncoding"], expected_kind);
+        client.open(&u, text, 1);
+        let diags = client.diagnostics(&u, 1);
+        let unknown = diags
+            .iter()
+            .find(|d| d["code"] == "unknown-field")
+            .expect("unknown field");
+        let want = if expected_kind == "utf-8" {
+            pos8(text, "bogus", 0)
+        } else {
+            pos16(text, "bogus", 0, 0)
+        };
+        assert_eq!(unknown["range"]["start"], want);
+        // The syntax error after the astral characters of line 2 is placed in this session's units.
+        let syntax = diags
+            .iter()
+            .find(|d| d["code"] == "syntax")
+            .expect("syntax error");
+        let want = if expected_kind == "utf-8" {
+            pos8(text, "/*", 0)
+        } else {
+            pos16(text, "/*", 0, 0)
+        };
+        assert_eq!(syntax["range"]["start"], want);
+        // Hover on `°C` of the ambient line, a column that differs between the encodings.
+        let at = if expected_kind == "utf-8" {
+            pos8(text, "70 °C", 0)
+        } else {
+            pos16(text, "70 °C", 0, 0)
+        };
+        let hover = client.request(
+            "textDocument/hover",
+            json!({ "textDocument": doc(&u), "position": at }),
+        );
+        let value = hover["contents"]["value"].as_str().unwrap_or("");
+        assert!(
+            value.contains("ambient") && value.contains("70 °C"),
+            "{value}"
+        );
+        // An edit after an astral character lands where the client meant it.
+        let after_clef = if expected_kind == "utf-8" {
+            let mut p = pos8(text, "𝄞 °", 0);
+            p["character"] = json!(p["character"].as_u64().unwrap_or(0) + 4);
+            p
+        } else {
+            pos16(text, "𝄞 °", 0, 2)
+        };
+        client.notify(
+            "textDocument/didChange",
+            json!({ "textDocument": { "uri": u, "version": 2 }, "contentChanges": [{ "range": { "start": after_clef, "end": after_clef }, "text": "!" }] }),
+        );
+        client.diagnostics(&u, 2);
+        let outline = client.request(
+            "textDocument/hover",
+            json!({ "textDocument": doc(&u), "position": at }),
+        );
+        assert!(
+            outline["contents"]["value"]
+                .as_str()
+                .unwrap_or("")
+                .contains("70 °C")
+        );
+        assert_eq!(client.stop(), Some(0));
+    }
+}
+
+#[test]
+fn malformed_messages_never_crash_the_server_or_lose_text() {
+    let dir = temp_dir("lsp-malformed");
+    let path = dir.join("m.guard");
+    let text = "regulator r {\n    load = 0 mA .. 2 mA\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    let mut client = start(&dir, json!({}));
+    client.open(&u, text, 1);
+    client.diagnostics(&u, 1);
+    // Broken JSON, a body that is not JSON-RPC, an unknown method, an unknown notification.
+    let garbage = b"{ this is not json";
+    client.send_raw(format!("Content-Length: {}\r\n\r\n", garbage.len()).as_bytes());
+    client.send_raw(garbage);
+    client.send_raw(&frame(&json!({ "hello": "world" })));
+    let unknown = client.request_full("guardband/noSuchMethod", json!({}));
+    assert_eq!(unknown["error"]["code"], -32601);
+    client.notify("guardband/noSuchNotification", json!({ "x": 1 }));
+    // Wrong parameter types answer an error.
+    let bad = client.request_full("textDocument/hover", json!({ "textDocument": 5 }));
+    assert!(bad["error"].is_object(), "{bad}");
+    // Positions past the end, a reversed range, a change to an unopened file.
+    let far = client.request(
+        "textDocument/hover",
+        json!({ "textDocument": doc(&u), "position": { "line": 9999, "character": 9999 } }),
+    );
+    assert!(far.is_null() || far.is_object());
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": u, "version": 2 }, "contentChanges": [
+            { "range": { "start": { "line": 1, "character": 23 }, "end": { "line": 1, "character": 19 } }, "text": "4 mA" },
+            { "range": { "start": { "line": 500, "character": 0 }, "end": { "line": 900, "character": 3 } }, "text": "// end\n" }
+        ] }),
+    );
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": "file:///never/opened.guard", "version": 2 }, "contentChanges": [{ "text": "x" }] }),
+    );
+    client.diagnostics(&u, 2);
+    let hover = client.request(
+        "textDocument/hover",
+        json!({ "textDocument": doc(&u), "position": { "line": 1, "character": 5 } }),
+    );
+    let value = hover["contents"]["value"].as_str().unwrap_or("");
+    assert!(
+        value.contains("4 mA"),
+        "the reversed-range edit applied: {value}"
+    );
+    // A 20 MB document is taken, checked (with a diagnostic, not a crash) and kept.
+    let huge = format!(
+        "regulator big {{\n    description = \"{}\"\n}}\n",
+        "x".repeat(20 * 1024 * 1024)
+    );
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": u, "version": 3 }, "contentChanges": [{ "text": huge }] }),
+    );
+    client.diagnostics(&u, 3);
+    let symbols = client.request(
+        "textDocument/documentSymbol",
+        json!({ "textDocument": doc(&u) }),
+    );
+    assert_eq!(symbols[0]["name"], "big");
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn exit_without_shutdown_ends_with_code_one_and_stdin_closing_ends_it_too() {
+    let dir = temp_dir("lsp-exit");
+    let mut client = start(&dir, json!({}));
+    client.notify("exit", Value::Null);
+    assert_eq!(client.wait_exit(), Some(1));
+    let mut client = start(&dir, json!({}));
+    client.close_stdin();
+    assert!(
+        client.wait_exit().is_some(),
+        "ends when the client goes away"
+    );
+}
+
+#[test]
+fn pull_diagnostics_when_the_client_supports_them() {
+    let dir = examples_copy("lsp-pull");
+    let path = dir.join("flawed/lamp_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(
+        &dir,
+        json!({ "textDocument": { "diagnostic": { "dynamicRegistration": false } } }),
+    );
+    client.open(&u, &text, 1);
+    let report = client.request(
+        "textDocument/diagnostic",
+        json!({ "textDocument": doc(&u) }),
+    );
+    assert_eq!(report["kind"], "full");
+    let items = report["items"].as_array().expect("items").clone();
+    assert_eq!(lsp_tuples(&items), check_tuples(&dir, &path));
+    assert!(!items.is_empty());
+    // In pull mode nothing is pushed.
+    assert!(
+        client
+            .arrives_within(Duration::from_millis(300), |m| m["method"]
+                == "textDocument/publishDiagnostics")
+            .is_none()
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn a_change_in_a_used_file_or_the_config_rechecks_dependents() {
+    let dir = examples_copy("lsp-dependents");
+    let main = dir.join("sensor_rail.guard");
+    let process = dir.join("process/wren180.guard");
+    let main_text = std::fs::read_to_string(&main).expect("read");
+    let process_text = std::fs::read_to_string(&process).expect("read");
+    let (mu, pu) = (uri(&main), uri(&process));
+    let caps = json!({ "workspace": { "didChangeWatchedFiles": { "dynamicRegistration": true }, "configuration": true } });
+    let mut client = start(&dir, caps);
+    client.open(&mu, &main_text, 1);
+    assert!(
+        client.diagnostics(&mu, 1).is_empty(),
+        "sensor_rail is clean"
+    );
+    // Thin the metal in the open process file: the main file's conductor is now under-rated.
+    client.open(&pu, &process_text, 1);
+    let thinner = process_text.replacen("= 1 mA/um^2", "= 0.1 mA/um^2", 1);
+    assert_ne!(thinner, process_text);
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": pu, "version": 2 }, "contentChanges": [{ "text": thinner }] }),
+    );
+    let main_diags = client.diagnostics_where(&mu, |d| !d.is_empty());
+    assert!(
+        main_diags
+            .iter()
+            .any(|d| d["code"] == "conductor-under-rated"),
+        "{main_diags:?}"
+    );
+    client.notify("textDocument/didChange", json!({ "textDocument": { "uri": pu, "version": 3 }, "contentChanges": [{ "text": process_text }] }));
+    assert!(client.diagnostics_where(&mu, |d| d.is_empty()).is_empty());
+    // The server registered file watching because the client allows it dynamically.
+    assert!(
+        client
+            .server_requests
+            .iter()
+            .any(|m| m == "client/registerCapability"),
+        "{:?}",
+        client.server_requests
+    );
+    // A stricter margin in guardband.toml, changed on disk, re-checks the open files.
+    let config = dir.join("guardband.toml");
+    let old = std::fs::read_to_string(&config).expect("config");
+    let stricter = old.replace("margin = \"20 %\"", "margin = \"900 %\"");
+    assert_ne!(stricter, old);
+    std::fs::write(&config, stricter).expect("write");
+    client.notify(
+        "workspace/didChangeWatchedFiles",
+        json!({ "changes": [{ "uri": uri(&config), "type": 2 }] }),
+    );
+    let strict = client.diagnostics_where(&mu, |d| !d.is_empty());
+    assert!(
+        strict.iter().any(|d| d["code"] == "limit-within-load"),
+        "{strict:?}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn no_dynamic_registration_unless_the_client_allows_it() {
+    let dir = temp_dir("lsp-no-watch");
+    let mut client = start(&dir, json!({}));
+    let r = client.request("workspace/symbol", json!({ "query": "" }));
+    assert_eq!(r, json!([]));
+    assert!(
+        client.server_requests.is_empty(),
+        "{:?}",
+        client.server_requests
+    );
+    assert_eq!(client.stop(), Some(0));
+}
