@@ -971,3 +971,23 @@ fn no_dynamic_registration_unless_the_client_allows_it() {
     );
     assert_eq!(client.stop(), Some(0));
 }
+
+#[test]
+fn a_panicking_handler_answers_an_internal_error_and_the_session_goes_on() {
+    let dir = temp_dir("lsp-panic");
+    let path = dir.join("p.guard");
+    let text = "regulator r {\n    load = 0 mA .. 2 mA\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    let mut client = Client::start_with_env(&dir, &[("GUARDBAND_LSP_TEST_HOOKS", "1")]);
+    client.initialize(&dir, json!({}), json!({ "debounceMs": 20 }));
+    client.open(&u, text, 1);
+    let panicked = client.request_full("guardband/test/panic", Value::Null);
+    assert_eq!(panicked["error"]["code"], -32603, "{panicked}");
+    let symbols = client.request(
+        "textDocument/documentSymbol",
+        json!({ "textDocument": doc(&u) }),
+    );
+    assert_eq!(symbols[0]["name"], "r");
+    assert_eq!(client.stop(), Some(0));
+}

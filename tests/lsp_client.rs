@@ -58,9 +58,15 @@ fn read_message(reader: &mut impl BufRead) -> Option<Value> {
 impl Client {
     /// Starts `guardband lsp` in `cwd`.
     pub fn start(cwd: &Path) -> Client {
+        Client::start_with_env(cwd, &[])
+    }
+
+    /// Starts `guardband lsp` in `cwd` with extra environment variables.
+    pub fn start_with_env(cwd: &Path, env: &[(&str, &str)]) -> Client {
         let mut child = Command::new(env!("CARGO_BIN_EXE_guardband"))
             .arg("lsp")
             .current_dir(cwd)
+            .envs(env.iter().copied())
             .stdin(Stdio::piped())
             .stdout(Stdio::piped())
             .stderr(Stdio::null())

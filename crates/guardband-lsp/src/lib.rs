@@ -7,6 +7,7 @@
 //! text of the editor's buffers, so the editor and the command line cannot
 //! disagree. See `DEVELOPERS.md` for the threading model.
 
+mod catch_panic;
 pub mod documents;
 pub mod encoding;
 pub mod engine;
@@ -35,7 +36,13 @@ pub fn run_stdio() -> Result<(), u8> {
     let shutdown = Arc::new(AtomicBool::new(false));
     let flag = Arc::clone(&shutdown);
     runtime.block_on(async move {
-        let (service, socket) = LspService::new(move |client| Backend::new(client, flag));
+        let mut builder = LspService::build(move |client| Backend::new(client, flag));
+        if std::env::var_os("GUARDBAND_LSP_TEST_HOOKS").is_some() {
+            // Only for the end-to-end tests: a request whose handler panics.
+            builder = builder.custom_method("guardband/test/panic", Backend::test_panic);
+        }
+        let (service, socket) = builder.finish();
+        let service = catch_panic::CatchPanic(service);
         // The client's bytes pass through the guard (see `transport`) on their way in.
         let (to_server, server_in) = tokio::io::duplex(1 << 16);
         let (server_out, from_server) = tokio::io::duplex(1 << 16);

@@ -145,7 +145,12 @@ impl Backend {
                 if state.analyses.len() >= MAX_ROOTS && !state.analyses.contains_key(&root) {
                     state.analyses.clear();
                 }
-                state.analyses.insert(root, Arc::clone(&analysis));
+                let old = state.analyses.insert(root, Arc::clone(&analysis));
+                drop(state);
+                // Freeing a large analysis takes a while; not on the way to the diagnostics.
+                if let Some(old) = old {
+                    tokio::task::spawn_blocking(move || drop(old));
+                }
                 Ok(analysis)
             }
             Ok(Err(why)) => {
@@ -315,6 +320,12 @@ impl Backend {
                 .publish_diagnostics(uri, diagnostics, version)
                 .await;
         }
+    }
+
+    /// A handler that panics, registered only under `GUARDBAND_LSP_TEST_HOOKS`,
+    /// so that the tests can prove a panic becomes an internal error.
+    pub async fn test_panic(&self) -> Result<()> {
+        panic!("deliberate panic for the tests");
     }
 
     /// Reads the client's settings through `workspace/configuration`, if it supports that.

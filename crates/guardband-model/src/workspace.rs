@@ -183,15 +183,25 @@ pub fn load_with(
         queue.push(id);
     }
     while let Some(id) = queue.pop() {
-        let file = ws.file(id).clone();
+        let file = ws.file(id);
         let dir = file
             .path
             .parent()
             .map(Path::to_path_buf)
             .unwrap_or_default();
+        // Only the `use` items are needed; the rest of the file is not copied.
+        let uses: Vec<guardband_syntax::UseItem> = file
+            .parse
+            .file
+            .items
+            .iter()
+            .filter_map(|item| match item {
+                Item::Use(u) => Some(u.clone()),
+                _ => None,
+            })
+            .collect();
         let mut imports = Vec::new();
-        for item in &file.parse.file.items {
-            let Item::Use(u) = item else { continue };
+        for u in &uses {
             let target = normalize(&dir.join(&u.path));
             if !target.starts_with(&root) {
                 diagnostics.push(
