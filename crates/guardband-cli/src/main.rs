@@ -2,7 +2,9 @@
 //! the rules, and prints diagnostics for people (ariadne) or tools (JSON).
 
 mod collect;
+mod github;
 mod render;
+mod sarif;
 
 use clap::{Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
@@ -16,8 +18,22 @@ struct Cli {
     command: Command,
 }
 
+/// Output formats of `check`.
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum Format {
+    /// Reports with source excerpts, for people.
+    Human,
+    /// One JSON object (schema in the README).
+    Json,
+    /// SARIF 2.1.0, for code-scanning uploads.
+    Sarif,
+    /// Workflow-command annotations for CI logs.
+    Github,
+}
+
+/// Output formats of `explain --list`.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum ListFormat {
     Human,
     Json,
 }
@@ -39,6 +55,12 @@ enum Command {
         /// Also fail (exit 1) on warnings.
         #[arg(long, value_enum)]
         deny: Option<Deny>,
+        /// Write the output to this file instead of standard output.
+        #[arg(long, value_name = "FILE")]
+        output: Option<PathBuf>,
+        /// Exit 0 even when there are findings (still 2 on usage or I/O failure).
+        #[arg(long)]
+        exit_zero: bool,
     },
     /// Rewrite .guard files in the canonical layout (or, with --check, list
     /// the ones that are not).
@@ -60,7 +82,7 @@ enum Command {
         list: bool,
         /// Output format (for --list).
         #[arg(long, value_enum, default_value = "human")]
-        format: Format,
+        format: ListFormat,
     },
 }
 
@@ -99,7 +121,9 @@ fn run() -> ExitCode {
             paths,
             format,
             deny,
-        } => check(paths, format, deny.is_some()),
+            output,
+            exit_zero,
+        } => check(paths, format, deny.is_some(), output, exit_zero),
         Command::Explain { rule, list, format } => explain(rule, list, format),
         Command::Fmt { paths, check } => fmt(paths, check),
         Command::Lsp => match guardband_lsp::run_stdio() {
@@ -109,7 +133,13 @@ fn run() -> ExitCode {
     }
 }
 
-fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
+fn check(
+    paths: Vec<PathBuf>,
+    format: Format,
+    deny_warnings: bool,
+    output: Option<PathBuf>,
+    exit_zero: bool,
+) -> ExitCode {
     let cwd = match std::env::current_dir() {
         Ok(d) => d,
         Err(e) => {
@@ -146,15 +176,48 @@ fn check(paths: Vec<PathBuf>, format: Format, deny_warnings: bool) -> ExitCode {
     let errors = checked.count(guardband_model::Severity::Error);
     let warnings = checked.count(guardband_model::Severity::Warning);
     let deny = deny_warnings || config.deny_warnings;
-    let written = match format {
-        Format::Human => render::human(ws, diagnostics, files_checked),
-        Format::Json => render::json(ws, diagnostics, files_checked),
+    let mut buffer: Vec<u8> = Vec::new();
+    let to_file = output.is_some();
+    let written = {
+        let stdout = std::io::stdout();
+        let mut lock;
+        let out: &mut dyn std::io::Write = if to_file {
+            &mut buffer
+        } else {
+            lock = stdout.lock();
+            &mut lock
+        };
+        match format {
+            Format::Human => render::human(
+                out,
+                !to_file && render::stdout_wants_color(),
+                ws,
+                diagnostics,
+                files_checked,
+            ),
+            Format::Json => render::json(out, ws, diagnostics, files_checked),
+            Format::Sarif => {
+                let text =
+                    serde_json::to_string_pretty(&sarif::log(ws, diagnostics)).unwrap_or_default();
+                writeln!(out, "{text}")
+            }
+            Format::Github => github::annotations(out, ws, diagnostics),
+        }
     };
     if let Err(e) = written
         && e.kind() != std::io::ErrorKind::BrokenPipe
     {
         eprintln!("guardband: cannot write output: {e}");
         return ExitCode::from(2);
+    }
+    if let Some(path) = &output
+        && let Err(e) = std::fs::write(path, &buffer)
+    {
+        eprintln!("guardband: cannot write {}: {e}", path.display());
+        return ExitCode::from(2);
+    }
+    if exit_zero {
+        return ExitCode::SUCCESS;
     }
     if errors > 0 || (deny && warnings > 0) {
         ExitCode::from(1)
@@ -227,10 +290,10 @@ fn print_line(text: &str) {
     let _ = writeln!(std::io::stdout().lock(), "{text}");
 }
 
-fn explain(rule: Option<String>, list: bool, format: Format) -> ExitCode {
+fn explain(rule: Option<String>, list: bool, format: ListFormat) -> ExitCode {
     let rules = guardband_rules::registry();
     if list || rule.is_none() {
-        if format == Format::Json {
+        if format == ListFormat::Json {
             let entries: Vec<serde_json::Value> = rules
                 .iter()
                 .map(|r| {

@@ -1,4 +1,5 @@
-//! Output: ariadne reports for people, one JSON object for tools.
+//! Output: ariadne reports for people, one JSON object for tools. SARIF and
+//! workflow annotations are in their own modules.
 
 use ariadne::{Color, Config, IndexType, Label, Report, ReportKind};
 use guardband_model::{Diagnostic, Severity, Workspace};
@@ -29,12 +30,19 @@ pub fn summary(diagnostics: &[Diagnostic], files: usize) -> String {
     )
 }
 
+/// Whether standard output is a terminal that may be coloured (`NO_COLOR` unset).
+pub fn stdout_wants_color() -> bool {
+    std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+}
+
 /// Writes every diagnostic through ariadne, then the summary line.
-/// Colour only on a terminal and when `NO_COLOR` is unset.
-pub fn human(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> std::io::Result<()> {
-    let stdout = std::io::stdout();
-    let color = stdout.is_terminal() && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
-    let mut out = stdout.lock();
+pub fn human(
+    out: &mut dyn Write,
+    color: bool,
+    ws: &Workspace,
+    diagnostics: &[Diagnostic],
+    files: usize,
+) -> std::io::Result<()> {
     let mut cache = ariadne::sources(ws.files.iter().map(|f| (f.display.clone(), f.text.clone())));
     for d in diagnostics {
         let name = ws.file(d.file).display.clone();
@@ -67,7 +75,7 @@ pub fn human(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> std::i
         if let Some(h) = &d.help {
             report = report.with_help(h);
         }
-        report.finish().write(&mut cache, &mut out)?;
+        report.finish().write(&mut cache, &mut *out)?;
     }
     writeln!(out, "{}", summary(diagnostics, files))?;
     out.flush()
@@ -110,9 +118,13 @@ pub fn json_value(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> s
 }
 
 /// Writes the JSON document and a newline.
-pub fn json(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> std::io::Result<()> {
-    let mut out = std::io::stdout().lock();
-    serde_json::to_writer_pretty(&mut out, &json_value(ws, diagnostics, files))?;
+pub fn json(
+    out: &mut dyn Write,
+    ws: &Workspace,
+    diagnostics: &[Diagnostic],
+    files: usize,
+) -> std::io::Result<()> {
+    serde_json::to_writer_pretty(&mut *out, &json_value(ws, diagnostics, files))?;
     writeln!(out)?;
     out.flush()
 }

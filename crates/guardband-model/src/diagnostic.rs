@@ -94,3 +94,49 @@ impl Diagnostic {
         self
     }
 }
+
+/// The language's own diagnostics (not lint rules), with what each means.
+/// SARIF output lists them as rules; the language reference lists the same
+/// (a test keeps the two in step).
+pub const LANGUAGE_DIAGNOSTICS: &[(&str, &str)] = &[
+    (
+        "syntax",
+        "the text does not parse (every error in a file is reported)",
+    ),
+    (
+        "encoding",
+        "the file is not UTF-8 text (invalid bytes, or a NUL byte)",
+    ),
+    (
+        "unit-mismatch",
+        "a value of the wrong dimension, or mixed dimensions in arithmetic",
+    ),
+    ("unknown-unit", "a unit spelling that is not in the table"),
+    (
+        "unknown-field",
+        "a field, block or item keyword the block does not have",
+    ),
+    ("unknown-name", "a reference that names nothing"),
+    ("missing-name", "a block that needs a name has none"),
+    ("duplicate-field", "a field or unnamed block given twice"),
+    (
+        "duplicate-name",
+        "two named blocks or items with the same name",
+    ),
+    (
+        "invalid-value",
+        "a bad choice, a backwards range, division by a range with zero, ...",
+    ),
+    (
+        "cycle",
+        "a value that depends on itself, or files that import each other",
+    ),
+    ("import-not-found", "a `use` path that does not exist"),
+    (
+        "import-outside-workspace",
+        "a `use` path that leaves the workspace root",
+    ),
+    ("config", "a problem in `guardband.toml`"),
+    ("invalid-suppression", "a malformed waiver"),
+    ("unused-suppression", "a waiver that waives nothing"),
+];

@@ -13,7 +13,7 @@ mod suggest;
 pub mod value;
 mod workspace;
 
-pub use diagnostic::{Diagnostic, FileId, Label, Severity};
+pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Severity};
 pub use eval::visible_items;
 pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
 pub use schema::BlockKind;

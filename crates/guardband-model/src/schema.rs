@@ -609,6 +609,36 @@ mod tests {
     const REFERENCE: &str = include_str!("../../guardband-syntax/REFERENCE.md");
 
     #[test]
+    fn reference_lists_every_language_diagnostic_and_no_other() {
+        let section = REFERENCE
+            .split("## Diagnostics of the language")
+            .nth(1)
+            .expect("section");
+        let section = section.split("\n## ").next().unwrap_or(section);
+        for (code, _) in crate::LANGUAGE_DIAGNOSTICS {
+            assert!(
+                section.contains(&format!("`{code}`")),
+                "{code} missing from REFERENCE.md"
+            );
+        }
+        for line in section.lines().filter(|l| l.starts_with("| `")) {
+            for code in line
+                .split('|')
+                .nth(1)
+                .unwrap_or("")
+                .split('`')
+                .skip(1)
+                .step_by(2)
+            {
+                assert!(
+                    crate::LANGUAGE_DIAGNOSTICS.iter().any(|(c, _)| *c == code),
+                    "{code} is in REFERENCE.md but not in LANGUAGE_DIAGNOSTICS"
+                );
+            }
+        }
+    }
+
+    #[test]
     fn reference_lists_every_block_field_and_unit() {
         for block in BLOCKS {
             assert!(
