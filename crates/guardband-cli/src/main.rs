@@ -71,6 +71,15 @@ enum Command {
         #[arg(long)]
         check: bool,
     },
+    /// Write a design-review report: a Markdown summary and an SVG current
+    /// chart per regulator.
+    Report {
+        /// Files or folders (default: the current folder).
+        paths: Vec<PathBuf>,
+        /// The folder to write into (created if needed).
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+    },
     /// Run the language server on standard input and output.
     Lsp,
     /// Print a rule's documentation.
@@ -126,6 +135,7 @@ fn run() -> ExitCode {
         } => check(paths, format, deny.is_some(), output, exit_zero),
         Command::Explain { rule, list, format } => explain(rule, list, format),
         Command::Fmt { paths, check } => fmt(paths, check),
+        Command::Report { paths, out } => report(paths, &out),
         Command::Lsp => match guardband_lsp::run_stdio() {
             Ok(()) => ExitCode::SUCCESS,
             Err(code) => ExitCode::from(code),
@@ -140,32 +150,9 @@ fn check(
     output: Option<PathBuf>,
     exit_zero: bool,
 ) -> ExitCode {
-    let cwd = match std::env::current_dir() {
-        Ok(d) => d,
-        Err(e) => {
-            eprintln!("guardband: cannot read the current folder: {e}");
-            return ExitCode::from(2);
-        }
-    };
-    let paths = if paths.is_empty() {
-        vec![cwd.clone()]
-    } else {
-        paths
-    };
-    let files = match collect::guard_files(&paths) {
-        Ok(f) => f,
-        Err(msg) => {
-            eprintln!("guardband: {msg}");
-            return ExitCode::from(2);
-        }
-    };
-    let root = collect::workspace_root(&paths[0], &cwd);
-    let checked = match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
+    let checked = match load_checked(paths) {
         Ok(c) => c,
-        Err((path, e)) => {
-            eprintln!("guardband: cannot read {}: {e}", path.display());
-            return ExitCode::from(2);
-        }
+        Err(code) => return code,
     };
     let (ws, config, diagnostics) = (&checked.ws, &checked.config, &checked.diagnostics);
     let files_checked = ws
@@ -223,6 +210,60 @@ fn check(
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
+    }
+}
+
+/// Finds the files under `paths` and runs the whole check on them; on a
+/// usage or I/O failure prints why and returns the exit code.
+fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCode> {
+    let cwd = match std::env::current_dir() {
+        Ok(d) => d,
+        Err(e) => {
+            eprintln!("guardband: cannot read the current folder: {e}");
+            return Err(ExitCode::from(2));
+        }
+    };
+    let paths = if paths.is_empty() {
+        vec![cwd.clone()]
+    } else {
+        paths
+    };
+    let files = match collect::guard_files(&paths) {
+        Ok(f) => f,
+        Err(msg) => {
+            eprintln!("guardband: {msg}");
+            return Err(ExitCode::from(2));
+        }
+    };
+    let root = collect::workspace_root(&paths[0], &cwd);
+    match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
+        Ok(c) => Ok(c),
+        Err((path, e)) => {
+            eprintln!("guardband: cannot read {}: {e}", path.display());
+            Err(ExitCode::from(2))
+        }
+    }
+}
+
+fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
+    let checked = match load_checked(paths) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    match guardband_report::write(&checked, out) {
+        Ok(written) => {
+            for path in written {
+                print_line(&format!("wrote {}", path.display()));
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!(
+                "guardband: cannot write the report into {}: {e}",
+                out.display()
+            );
+            ExitCode::from(2)
+        }
     }
 }
 

@@ -1,0 +1,225 @@
+//! `guardband report`: the summary and charts are written, the SVG is XML
+//! that carries its values and labels, the numbers equal the hover's, and
+//! the bars of a spec built to cross are in the right order.
+
+mod common;
+mod lsp_client;
+
+use common::{fixture, guardband, root, temp_dir};
+use lsp_client::{Client, uri};
+use serde_json::json;
+use std::path::Path;
+
+fn report(args: &[&str], out: &Path) -> String {
+    let mut all = vec!["report"];
+    all.extend_from_slice(args);
+    all.extend_from_slice(&["--out", out.to_str().expect("utf-8")]);
+    let run = guardband(&root(), &all);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    std::fs::read_to_string(out.join("summary.md")).expect("summary")
+}
+
+#[test]
+fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
+    let out = temp_dir("report-examples");
+    let summary = report(&["examples"], &out);
+    assert!(summary.contains("does not replace sign-off"), "the caution");
+    assert!(
+        summary.contains("8 errors, 4 warnings, 1 info"),
+        "{summary}"
+    );
+    for regulator in [
+        "sensor_rail",
+        "radio_rail",
+        "aux_rail",
+        "lamp_rail",
+        "wake_rail",
+    ] {
+        assert!(
+            summary.contains(&format!("## Regulator `{regulator}`")),
+            "{regulator}"
+        );
+        assert!(
+            summary.contains(&format!("]({regulator}.svg)")),
+            "{regulator} chart linked"
+        );
+        let svg = std::fs::read_to_string(out.join(format!("{regulator}.svg"))).expect("chart");
+        let doc = roxmltree::Document::parse(&svg).unwrap_or_else(|e| panic!("{regulator}: {e}"));
+        let texts: Vec<&str> = doc
+            .descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .filter_map(|n| n.text())
+            .map(str::trim)
+            .collect();
+        assert!(texts.contains(&"rated load"), "{texts:?}");
+        assert!(
+            texts.iter().any(|t| t.starts_with("current (")),
+            "axis labelled with its unit"
+        );
+        assert!(
+            doc.descendants()
+                .any(|n| n.attribute("data-role") == Some("rated-load"))
+        );
+    }
+    // The fault-coverage matrix and the open findings of a flawed spec.
+    let aux = summary
+        .split("## Regulator `aux_rail`")
+        .nth(1)
+        .expect("aux_rail section");
+    let aux = aux.split("## Regulator").next().unwrap_or(aux);
+    assert!(
+        aux.contains("| pin `vout` (off-chip) | ✓ short_to_ground |"),
+        "{aux}"
+    );
+    assert!(aux.contains("**error** `conductor-under-rated`"), "{aux}");
+    assert!(
+        aux.contains("| conductor `pass_source` rating | 44.3 mA, margin -78.7 %"),
+        "{aux}"
+    );
+    let sensor = summary
+        .split("## Regulator `sensor_rail`")
+        .nth(1)
+        .expect("sensor_rail section");
+    let sensor = sensor.split("## Regulator").next().unwrap_or(sensor);
+    assert!(sensor.contains("### Open findings\n\nNone."), "{sensor}");
+}
+
+#[test]
+fn the_report_shows_the_numbers_the_hover_shows() {
+    let out = temp_dir("report-hover");
+    let summary = report(&["examples"], &out);
+    let sensor = summary
+        .split("## Regulator `sensor_rail`")
+        .nth(1)
+        .expect("section");
+    let row = |name: &str| -> String {
+        sensor
+            .lines()
+            .find(|l| l.starts_with(&format!("| {name} |")))
+            .unwrap_or_else(|| panic!("row {name}"))
+            .split('|')
+            .nth(2)
+            .unwrap_or("")
+            .trim()
+            .to_string()
+    };
+    let worst_case = row("limit `sensed`, worst case");
+    let statistical = row("limit `sensed`, statistical (3 σ)");
+    let rating = row("conductor `pass_source` rating");
+    let rating_value = rating.split(',').next().unwrap_or("").to_string();
+
+    let dir = root().join("examples");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = Client::start(&dir);
+    client.initialize(&dir, json!({}), json!({ "debounceMs": 20 }));
+    client.open(&u, &text, 1);
+    let at = |needle: &str, shift: u32| {
+        let offset = text.find(needle).expect("needle");
+        let line = text[..offset].matches('\n').count();
+        let start = text[..offset].rfind('\n').map(|i| i + 1).unwrap_or(0);
+        let col: usize = text[start..offset].chars().map(char::len_utf16).sum();
+        json!({ "line": line, "character": col as u32 + shift })
+    };
+    let hover = |client: &mut Client, position| -> String {
+        let r = client.request(
+            "textDocument/hover",
+            json!({ "textDocument": { "uri": u }, "position": position }),
+        );
+        r["contents"]["value"].as_str().unwrap_or("").to_string()
+    };
+    let limit = hover(&mut client, at("limit sensed", 7));
+    assert!(
+        limit.contains(&format!("worst case: {worst_case}")),
+        "{worst_case} vs\n{limit}"
+    );
+    let (lo, hi) = statistical.split_once(" .. ").expect("range");
+    assert!(
+        limit.contains(&format!("statistical: {lo} .. {hi}")),
+        "{statistical} vs\n{limit}"
+    );
+    let conductor = hover(&mut client, at("conductor pass_source", 12));
+    assert!(
+        conductor.contains(&format!("rating: {rating_value}")),
+        "{rating_value} vs\n{conductor}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
+fn a_spec_built_to_cross_draws_its_bars_in_order_and_where_they_cross() {
+    let out = temp_dir("report-crossing");
+    let summary = report(
+        &[fixture("report/crossing.guard").to_str().expect("utf-8")],
+        &out,
+    );
+    assert!(summary.contains("conductor-under-rated"));
+    let svg = std::fs::read_to_string(out.join("crossing_rail.svg")).expect("chart");
+    let doc = roxmltree::Document::parse(&svg).expect("XML");
+    let bars: Vec<(String, f64, f64, f64)> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("rect") && n.attribute("data-role").is_some())
+        .map(|n| {
+            let num = |a: &str| {
+                n.attribute(a)
+                    .and_then(|v| v.parse::<f64>().ok())
+                    .unwrap_or(f64::NAN)
+            };
+            (
+                n.attribute("data-role").unwrap_or("").to_string(),
+                num("y"),
+                num("x") + num("width"),
+                num("data-hi-amperes"),
+            )
+        })
+        .collect();
+    let roles: Vec<&str> = bars.iter().map(|b| b.0.as_str()).collect();
+    assert_eq!(
+        roles,
+        [
+            "rated-load",
+            "margin",
+            "limit-worst-case",
+            "limit-statistical",
+            "unlimited-surge",
+            "conductor-rating"
+        ],
+        "rows top to bottom"
+    );
+    assert!(
+        bars.windows(2).all(|w| w[0].1 < w[1].1),
+        "each row below the last"
+    );
+    let right = |role: &str| bars.iter().find(|b| b.0 == role).expect(role).2;
+    // 100 mA load < 120 mA required < 150 mA rating < 208 mA window top < 0.9 A surge.
+    assert!(right("rated-load") < right("margin"));
+    assert!(right("margin") < right("conductor-rating"));
+    assert!(
+        right("conductor-rating") < right("limit-worst-case"),
+        "the metal ends before the window does"
+    );
+    assert!(right("limit-worst-case") < right("unlimited-surge"));
+    let worst = doc
+        .descendants()
+        .find(|n| n.attribute("data-role") == Some("worst-current"))
+        .expect("worst-current line");
+    let amperes: f64 = worst
+        .attribute("data-amperes")
+        .and_then(|v| v.parse().ok())
+        .expect("amperes");
+    assert!((amperes - 0.208).abs() < 0.001, "{amperes}");
+    let x: f64 = worst
+        .attribute("d")
+        .and_then(|d| d.split_whitespace().nth(1))
+        .and_then(|v| v.parse().ok())
+        .expect("x");
+    assert!(
+        x > right("conductor-rating"),
+        "the worst current crosses the rating bar"
+    );
+    assert!(
+        (x - right("limit-worst-case")).abs() < 0.5,
+        "and sits at the window's top"
+    );
+}
