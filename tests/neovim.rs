@@ -20,7 +20,10 @@ fn byte_column(line: &str, char_column: u64) -> u64 {
 #[test]
 fn neovim_gets_the_diagnostics_the_command_line_reports() {
     if Command::new("nvim").arg("--version").output().is_err() {
-        assert!(std::env::var_os("CI").is_none(), "CI must install neovim (see .ci/run)");
+        assert!(
+            std::env::var_os("CI").is_none(),
+            "CI must install neovim (see .ci/run)"
+        );
         eprintln!("notice: nvim is not installed; the Neovim test did not run");
         return;
     }
@@ -29,7 +32,10 @@ fn neovim_gets_the_diagnostics_the_command_line_reports() {
     let file = root().join("examples/flawed/aux_rail.guard");
     let status = Command::new("nvim")
         .args(["--headless", "-u", "NONE", "-i", "NONE", "-n", "-c"])
-        .arg(format!("luafile {}", root().join("tests/neovim/diagnostics.lua").display()))
+        .arg(format!(
+            "luafile {}",
+            root().join("tests/neovim/diagnostics.lua").display()
+        ))
         .env("GUARDBAND_RTP", root().join("editors/neovim"))
         .env("GUARDBAND_BIN", env!("CARGO_BIN_EXE_guardband"))
         .env("GUARDBAND_FILE", &file)
@@ -38,8 +44,9 @@ fn neovim_gets_the_diagnostics_the_command_line_reports() {
         .status()
         .expect("run nvim");
     assert!(status.success());
-    let got: Value = serde_json::from_str(&std::fs::read_to_string(&out).expect("nvim wrote its report"))
-        .expect("json");
+    let got: Value =
+        serde_json::from_str(&std::fs::read_to_string(&out).expect("nvim wrote its report"))
+            .expect("json");
     assert_eq!(got["ok"], true, "diagnostics arrived: {got}");
     assert_eq!(got["filetype"], "guard");
 

@@ -617,3 +617,100 @@ mod tests {
         assert!(matches!(v.add(&i), Err(ValueError::Mismatch { .. })));
     }
 }
+
+#[cfg(test)]
+mod properties {
+    //! Interval arithmetic is sound (every combination of points inside the
+    //! operands lands inside the result) and, for independent operands of
+    //! `+`, `-`, `*`, `/`, `min` and `max`, tight (the bounds are reached).
+    use super::*;
+    use proptest::prelude::*;
+
+    fn ranged(source: u32) -> impl Strategy<Value = Value> {
+        (-1e3f64..1e3, 0.0f64..1e3).prop_map(move |(lo, width)| {
+            Value::range(QuantityKind::NONE, lo, lo + width, SourceId(source))
+        })
+    }
+
+    fn at(v: &Value, t: f64) -> f64 {
+        v.lo + (v.hi - v.lo) * t
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-9 * (1.0 + a.abs().max(b.abs()))
+    }
+
+    type Op = (
+        &'static str,
+        fn(&Value, &Value) -> Result<Value>,
+        fn(f64, f64) -> f64,
+    );
+
+    const OPS: &[Op] = &[
+        ("add", Value::add, |x, y| x + y),
+        ("sub", Value::sub, |x, y| x - y),
+        ("mul", Value::mul, |x, y| x * y),
+        ("div", Value::div, |x, y| x / y),
+        ("min", Value::min, f64::min),
+        ("max", Value::max, f64::max),
+    ];
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(512))]
+
+        #[test]
+        fn binary_operations_are_sound_and_tight(
+            a in ranged(0),
+            b in ranged(1),
+            op in 0..OPS.len(),
+            points in proptest::collection::vec((0.0f64..=1.0, 0.0f64..=1.0), 16),
+        ) {
+            let (name, apply, point) = OPS[op];
+            let Ok(r) = apply(&a, &b) else {
+                // Only division by a range holding zero is refused.
+                prop_assert!(name == "div" && b.lo <= 0.0 && b.hi >= 0.0);
+                return Ok(());
+            };
+            for (s, t) in points {
+                let y = point(at(&a, s), at(&b, t));
+                prop_assert!(r.lo - 1e-9 * (1.0 + y.abs()) <= y && y <= r.hi + 1e-9 * (1.0 + y.abs()),
+                    "{name}: {y} outside {}..{}", r.lo, r.hi);
+            }
+            // Independent operands: the extremes are at corners, so the bounds are reached.
+            let corners = [(a.lo, b.lo), (a.lo, b.hi), (a.hi, b.lo), (a.hi, b.hi)]
+                .map(|(x, y)| point(x, y));
+            let lo = corners.iter().copied().fold(f64::INFINITY, f64::min);
+            let hi = corners.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+            prop_assert!(close(r.lo, lo) && close(r.hi, hi), "{name}: {}..{} vs corners {lo}..{hi}", r.lo, r.hi);
+        }
+
+        #[test]
+        fn nested_expressions_stay_sound(
+            a in ranged(0),
+            b in ranged(1),
+            c in ranged(2),
+            points in proptest::collection::vec((0.0f64..=1.0, 0.0f64..=1.0, 0.0f64..=1.0), 16),
+        ) {
+            // (a + b) * c - a: `a` appears twice, so the result may be wider than
+            // the true range, but never narrower.
+            let r = a.add(&b).and_then(|s| s.mul(&c)).and_then(|p| p.sub(&a)).expect("defined");
+            for (s, t, u) in points {
+                let (x, y, z) = (at(&a, s), at(&b, t), at(&c, u));
+                let v = (x + y) * z - x;
+                let slack = 1e-9 * (1.0 + v.abs());
+                prop_assert!(r.lo - slack <= v && v <= r.hi + slack);
+            }
+        }
+
+        #[test]
+        fn abs_and_sqrt_are_sound(a in ranged(0), t in 0.0f64..=1.0) {
+            let x = at(&a, t);
+            let r = a.abs().expect("abs");
+            prop_assert!(r.lo - 1e-9 <= x.abs() && x.abs() <= r.hi + 1e-9);
+            if a.lo >= 0.0 {
+                let s = a.sqrt().expect("sqrt of a non-negative range");
+                prop_assert!(s.lo - 1e-9 <= x.sqrt() && x.sqrt() <= s.hi + 1e-9);
+            }
+        }
+    }
+}

@@ -764,3 +764,45 @@ mod tests {
         assert!((escape_ppm(&s, 0.7) - 1349.898).abs() < 0.1);
     }
 }
+
+#[cfg(test)]
+mod properties {
+    //! Root-sum-square never gives a wider window than the worst case.
+    use super::statistical;
+    use guardband_model::{SourceId, Value};
+    use guardband_units::QuantityKind;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(512))]
+
+        #[test]
+        fn rss_never_exceeds_the_worst_case(
+            parts in proptest::collection::vec((0.1f64..100.0, 0.0f64..0.5), 1..8),
+            multiply in proptest::bool::ANY,
+            k in 1.0f64..6.0,
+        ) {
+            let mut acc: Option<Value> = None;
+            for (i, (nominal, tolerance)) in parts.iter().enumerate() {
+                let v = Value::range(
+                    QuantityKind::NONE,
+                    nominal * (1.0 - tolerance),
+                    nominal * (1.0 + tolerance),
+                    SourceId(i as u32),
+                );
+                acc = Some(match acc {
+                    None => v,
+                    Some(a) if multiply => a.mul(&v).expect("mul"),
+                    Some(a) => a.add(&v).expect("add"),
+                });
+            }
+            let v = acc.expect("at least one part");
+            let stat = statistical(&v, k);
+            let worst = v.hi - v.lo;
+            prop_assert!(stat.hi - stat.lo <= worst * (1.0 + 1e-9) + 1e-12,
+                "RSS {} wider than worst case {worst}", stat.hi - stat.lo);
+            let shares: f64 = stat.contributors.iter().map(|c| c.share).sum();
+            prop_assert!(stat.sigma == 0.0 || (shares - 1.0).abs() < 1e-9, "shares sum to one");
+        }
+    }
+}

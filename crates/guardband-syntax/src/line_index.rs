@@ -153,4 +153,53 @@ mod tests {
         let idx = LineIndex::new("µx");
         assert_eq!(idx.line_col(1).utf8, 0);
     }
+
+    mod properties {
+        use super::super::LineIndex;
+        use proptest::prelude::*;
+
+        /// Text of arbitrary characters with `\n` and `\r\n` line ends (a lone
+        /// `\r` is not a line end and is left out).
+        fn text() -> impl Strategy<Value = String> {
+            proptest::collection::vec(
+                prop_oneof![
+                    4 => any::<char>().prop_filter("no line-end characters", |c| *c != '\r' && *c != '\n'),
+                    1 => Just('\n'),
+                    1 => Just('µ'),
+                    1 => Just('𝄞'),
+                ],
+                0..200,
+            )
+            .prop_flat_map(|chars| {
+                let n = chars.len();
+                (Just(chars), proptest::collection::vec(any::<bool>(), n))
+            })
+            .prop_map(|(chars, crlf)| {
+                chars
+                    .into_iter()
+                    .zip(crlf)
+                    .map(|(c, cr)| if c == '\n' && cr { "\r\n".to_string() } else { c.to_string() })
+                    .collect()
+            })
+        }
+
+        proptest! {
+            #![proptest_config(ProptestConfig::with_cases(256))]
+
+            #[test]
+            fn offsets_round_trip_through_utf8_and_utf16_positions(text in text()) {
+                let index = LineIndex::new(&text);
+                for (offset, _) in text.char_indices().chain(std::iter::once((text.len(), ' '))) {
+                    if text[..offset].ends_with('\r') {
+                        continue; // between `\r` and `\n`: not a position a user can point at
+                    }
+                    let p = index.line_col(offset);
+                    prop_assert_eq!(index.offset_utf16(p.line, p.utf16), offset);
+                    prop_assert_eq!(index.offset_utf8(p.line, p.utf8), offset);
+                    let line_start = text[..offset].rfind('\n').map(|i| i + 1).unwrap_or(0);
+                    prop_assert_eq!(p.chars as usize, text[line_start..offset].chars().count());
+                }
+            }
+        }
+    }
 }
