@@ -838,16 +838,32 @@ fn malformed_messages_never_crash_the_server_or_lose_text() {
         value.contains("4 mA"),
         "the reversed-range edit applied: {value}"
     );
-    // A 20 MB document is taken, checked (with a diagnostic, not a crash) and kept.
+    // A 20 MB document is taken and kept; it is above the 16 MiB file limit,
+    // so it gets a `limit` diagnostic instead of a check.
+    let megabytes = 20 * 1024 * 1024;
     let huge = format!(
         "regulator big {{\n    description = \"{}\"\n}}\n",
-        "x".repeat(20 * 1024 * 1024)
+        "x".repeat(megabytes)
     );
     client.notify(
         "textDocument/didChange",
         json!({ "textDocument": { "uri": u, "version": 3 }, "contentChanges": [{ "text": huge }] }),
     );
-    client.diagnostics(&u, 3);
+    let limited = client.diagnostics(&u, 3);
+    assert!(limited.iter().any(|d| d["code"] == "limit"), "{limited:?}");
+    // An incremental edit deleting the 20 MB string applies to the text the server kept.
+    let start = json!({ "line": 1, "character": 19 });
+    let end = json!({ "line": 1, "character": 19 + megabytes });
+    client.notify(
+        "textDocument/didChange",
+        json!({ "textDocument": { "uri": u, "version": 4 }, "contentChanges": [{ "range": { "start": start, "end": end }, "text": "" }] }),
+    );
+    assert!(
+        client
+            .diagnostics(&u, 4)
+            .iter()
+            .all(|d| d["code"] != "limit")
+    );
     let symbols = client.request(
         "textDocument/documentSymbol",
         json!({ "textDocument": doc(&u) }),

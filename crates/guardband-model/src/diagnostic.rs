@@ -137,6 +137,10 @@ pub const LANGUAGE_DIAGNOSTICS: &[(&str, &str)] = &[
         "a `use` path that leaves the workspace root",
     ),
     ("config", "a problem in `guardband.toml`"),
+    (
+        "limit",
+        "a file, nesting, import or evaluation limit was reached (see `[limits]`)",
+    ),
     ("invalid-suppression", "a malformed waiver"),
     ("unused-suppression", "a waiver that waives nothing"),
 ];

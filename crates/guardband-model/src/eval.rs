@@ -47,10 +47,18 @@ struct Evaluator<'a> {
     diagnostics: &'a mut Vec<Diagnostic>,
     /// The items each file can name, by file id (items never change during evaluation).
     visible: Vec<Vec<NodeId>>,
+    /// Expression nodes evaluated so far, and the most allowed.
+    steps: u64,
+    max_steps: u64,
 }
 
 /// Evaluates every field of every node in place, reporting problems.
-pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnostic>) {
+pub fn evaluate(
+    ws: &Workspace,
+    model: &mut Model,
+    diagnostics: &mut Vec<Diagnostic>,
+    max_steps: u64,
+) {
     let states = model
         .nodes
         .iter()
@@ -68,6 +76,8 @@ pub fn evaluate(ws: &Workspace, model: &mut Model, diagnostics: &mut Vec<Diagnos
         stack: Vec::new(),
         diagnostics,
         visible,
+        steps: 0,
+        max_steps,
     };
     for n in 0..ev.model.nodes.len() {
         for i in 0..ev.model.nodes[n].fields.len() {
@@ -440,6 +450,25 @@ impl<'a> Evaluator<'a> {
     /// Evaluates an expression to a quantity; `key` labels stated tolerances.
     fn quantity(&mut self, node: NodeId, expr: &Expr, key: &str) -> Option<Value> {
         let file = self.file_of(node);
+        self.steps += 1;
+        if self.steps > self.max_steps {
+            if self.steps == self.max_steps + 1 {
+                self.push(
+                    Diagnostic::error(
+                        "limit",
+                        file,
+                        expr.span.clone(),
+                        format!(
+                            "evaluation stopped after {} steps; the rest of the workspace is not evaluated",
+                            self.max_steps
+                        ),
+                    )
+                    .primary("the limit was reached here")
+                    .help("raise `max_eval_steps` under `[limits]` in guardband.toml, or split the workspace"),
+                );
+            }
+            return None;
+        }
         match &expr.kind {
             ExprKind::Error => None,
             ExprKind::Number { value, unit } => self.number(file, expr, *value, unit.as_ref()),

@@ -7,6 +7,7 @@
 mod build;
 mod diagnostic;
 mod eval;
+pub mod limits;
 pub mod model;
 pub mod schema;
 mod suggest;
@@ -15,6 +16,7 @@ mod workspace;
 
 pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Severity};
 pub use eval::visible_items;
+pub use limits::Limits;
 pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
@@ -34,6 +36,11 @@ pub fn syntax_diagnostic(file: FileId, err: &SyntaxError) -> Diagnostic {
 /// Returns the model and every diagnostic: syntax errors of each file first,
 /// then schema and evaluation problems. Never panics on any input.
 pub fn check(ws: &Workspace) -> (Model, Vec<Diagnostic>) {
+    check_with(ws, &Limits::default())
+}
+
+/// Like [`check`], within `limits` (evaluation steps).
+pub fn check_with(ws: &Workspace, limits: &Limits) -> (Model, Vec<Diagnostic>) {
     let mut diagnostics = Vec::new();
     for file in &ws.files {
         diagnostics.extend(
@@ -44,6 +51,6 @@ pub fn check(ws: &Workspace) -> (Model, Vec<Diagnostic>) {
         );
     }
     let mut model = build::build(ws, &mut diagnostics);
-    eval::evaluate(ws, &mut model, &mut diagnostics);
+    eval::evaluate(ws, &mut model, &mut diagnostics, limits.max_eval_steps);
     (model, diagnostics)
 }

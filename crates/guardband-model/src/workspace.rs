@@ -1,8 +1,9 @@
 //! Loading `.guard` files from disk: decoding, parsing, following `use`
 //! imports inside the workspace root, and reporting import cycles.
 
+use crate::limits::{Limits, show_bytes};
 use crate::{Diagnostic, FileId};
-use guardband_syntax::{Item, LineIndex, Parse, parse};
+use guardband_syntax::{Item, LineIndex, Parse, parse_with};
 use std::path::{Component, Path, PathBuf};
 
 /// One loaded file.
@@ -141,7 +142,13 @@ pub fn load(
     entries: &[PathBuf],
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
-    load_with(root, entries, &|p: &Path| std::fs::read(p), diagnostics)
+    load_with(
+        root,
+        entries,
+        &|p: &Path| std::fs::read(p),
+        &Limits::default(),
+        diagnostics,
+    )
 }
 
 /// Like [`load`], but file contents come from `read`, so that an editor can
@@ -152,6 +159,7 @@ pub fn load_with(
     root: &Path,
     entries: &[PathBuf],
     read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    limits: &Limits,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
@@ -172,17 +180,18 @@ pub fn load_with(
         root: root.clone(),
         files: Vec::new(),
     };
-    let mut queue: Vec<FileId> = Vec::new();
+    // Files to follow, with how many imports deep they are.
+    let mut queue: std::collections::VecDeque<(FileId, usize)> = Default::default();
     for entry in entries {
         let path = canonical_or_known(entry).map_err(|e| (entry.clone(), e))?;
         if ws.find(&path).is_some() {
             continue;
         }
         let bytes = read(&path).map_err(|e| (entry.clone(), e))?;
-        let id = add_file(&mut ws, path, &bytes, diagnostics);
-        queue.push(id);
+        let id = add_file(&mut ws, path, &bytes, limits, diagnostics);
+        queue.push_back((id, 0));
     }
-    while let Some(id) = queue.pop() {
+    while let Some((id, depth)) = queue.pop_front() {
         let file = ws.file(id);
         let dir = file
             .path
@@ -249,10 +258,42 @@ pub fn load_with(
             }
             let target_id = match ws.find(&canonical) {
                 Some(t) => t,
+                None if depth + 1 > limits.max_import_depth => {
+                    diagnostics.push(
+                        Diagnostic::error(
+                            "limit",
+                            id,
+                            u.path_span.clone(),
+                            format!(
+                                "imports nested deeper than {} files; `{}` is not loaded",
+                                limits.max_import_depth, u.path
+                            ),
+                        )
+                        .primary("too deep")
+                        .help("raise `max_import_depth` under `[limits]` in guardband.toml"),
+                    );
+                    continue;
+                }
+                None if ws.files.len() >= limits.max_files => {
+                    diagnostics.push(
+                        Diagnostic::error(
+                            "limit",
+                            id,
+                            u.path_span.clone(),
+                            format!(
+                                "more than {} files in one check; `{}` is not loaded",
+                                limits.max_files, u.path
+                            ),
+                        )
+                        .primary("one file too many")
+                        .help("raise `max_files` under `[limits]` in guardband.toml"),
+                    );
+                    continue;
+                }
                 None => match read(&canonical) {
                     Ok(bytes) => {
-                        let t = add_file(&mut ws, canonical, &bytes, diagnostics);
-                        queue.push(t);
+                        let t = add_file(&mut ws, canonical, &bytes, limits, diagnostics);
+                        queue.push_back((t, depth + 1));
                         t
                     }
                     Err(e) => {
@@ -281,12 +322,30 @@ fn add_file(
     ws: &mut Workspace,
     path: PathBuf,
     bytes: &[u8],
+    limits: &Limits,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> FileId {
     let id = FileId(ws.files.len() as u32);
+    if bytes.len() > limits.max_file_bytes {
+        diagnostics.push(
+            Diagnostic::error(
+                "limit",
+                id,
+                0..0,
+                format!(
+                    "this file is {}, larger than the {} limit; it was not checked",
+                    show_bytes(bytes.len()),
+                    show_bytes(limits.max_file_bytes)
+                ),
+            )
+            .primary("not read")
+            .help("split the file, or raise `max_file_size` under `[limits]` in guardband.toml"),
+        );
+        return ws.push_file(path, String::new(), Parse::default());
+    }
     let (text, parsed) = match decode(bytes) {
         Ok(text) => {
-            let parsed = parse(&text);
+            let parsed = parse_with(&text, limits.max_nesting);
             (text, parsed)
         }
         Err((text, offset, message)) => {

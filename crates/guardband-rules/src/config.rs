@@ -25,6 +25,8 @@ pub struct Config {
     pub severities: HashMap<String, Option<Severity>>,
     /// Where the file is, if there is one.
     pub file: Option<FileId>,
+    /// Limits on file size, nesting, imports and evaluation (`[limits]`).
+    pub limits: guardband_model::Limits,
 }
 
 impl Default for Config {
@@ -38,6 +40,7 @@ impl Default for Config {
             deny_warnings: false,
             severities: HashMap::new(),
             file: None,
+            limits: guardband_model::Limits::default(),
         }
     }
 }
@@ -125,6 +128,123 @@ fn quantity(text: &str) -> Option<(f64, guardband_units::QuantityKind)> {
     Some((u.to_si(n), u.kind))
 }
 
+/// A byte count: an integer, or a string such as `"16 MiB"` or `"512 KiB"`.
+fn byte_count(value: &toml::Value) -> Option<usize> {
+    match value {
+        toml::Value::Integer(i) if *i > 0 => usize::try_from(*i).ok(),
+        toml::Value::String(s) => {
+            let s = s.trim();
+            let (number, unit) = s
+                .find(|c: char| !(c.is_ascii_digit() || c == '.'))
+                .map(|i| (s[..i].trim(), s[i..].trim()))
+                .unwrap_or((s, ""));
+            let n: f64 = number.parse().ok()?;
+            let factor = match unit {
+                "" | "B" | "bytes" => 1.0,
+                "KiB" => 1024.0,
+                "MiB" => 1024.0 * 1024.0,
+                "GiB" => 1024.0 * 1024.0 * 1024.0,
+                _ => return None,
+            };
+            let bytes = n * factor;
+            (bytes >= 1.0 && bytes < 1e15).then_some(bytes as usize)
+        }
+        _ => None,
+    }
+}
+
+/// Reads a `[limits]` table; problems come back as (key, message, help).
+fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, String, String)>) {
+    let mut limits = guardband_model::Limits::default();
+    let mut problems = Vec::new();
+    let count = |v: &toml::Value, max: u64| -> Option<u64> {
+        v.as_integer()
+            .and_then(|i| u64::try_from(i).ok())
+            .filter(|i| *i >= 1 && *i <= max)
+    };
+    for (key, value) in table {
+        let bad = |what: &str| {
+            (
+                key.clone(),
+                format!("`{key}` takes {what}"),
+                format!(
+                    "write e.g. `{key} = {}`",
+                    match key.as_str() {
+                        "max_file_size" => "\"16 MiB\"",
+                        "max_nesting" => "48",
+                        "max_import_depth" => "32",
+                        "max_files" => "10000",
+                        _ => "50000000",
+                    }
+                ),
+            )
+        };
+        match key.as_str() {
+            "max_file_size" => match byte_count(value) {
+                Some(n) => limits.max_file_bytes = n,
+                None => problems.push(bad("a size such as \"16 MiB\" or a number of bytes")),
+            },
+            "max_nesting" => match count(value, guardband_syntax::HARD_MAX_NESTING as u64) {
+                Some(n) => limits.max_nesting = n as usize,
+                None => problems.push(bad(&format!(
+                    "a whole number from 1 to {}",
+                    guardband_syntax::HARD_MAX_NESTING
+                ))),
+            },
+            "max_import_depth" => match count(value, 10_000) {
+                Some(n) => limits.max_import_depth = n as usize,
+                None => problems.push(bad("a whole number from 1 to 10000")),
+            },
+            "max_files" => match count(value, 10_000_000) {
+                Some(n) => limits.max_files = n as usize,
+                None => problems.push(bad("a whole number from 1 to 10000000")),
+            },
+            "max_eval_steps" => match count(value, u64::MAX >> 1) {
+                Some(n) => limits.max_eval_steps = n,
+                None => problems.push(bad("a positive whole number")),
+            },
+            other => {
+                let known = [
+                    "max_file_size",
+                    "max_nesting",
+                    "max_import_depth",
+                    "max_files",
+                    "max_eval_steps",
+                ];
+                let help = did_you_mean(other, known.iter().copied())
+                    .map(|s| format!("did you mean `{s}`?"))
+                    .unwrap_or_else(|| format!("known keys: {}", known.join(", ")));
+                problems.push((
+                    other.to_string(),
+                    format!("unknown key `{other}` in [limits]"),
+                    help,
+                ));
+            }
+        }
+    }
+    (limits, problems)
+}
+
+/// The `[limits]` of the guardband.toml at `root`, read before anything is
+/// loaded; a missing or broken file gives the defaults (its problems are
+/// reported when the configuration is loaded).
+pub fn limits_at(
+    root: &std::path::Path,
+    read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
+) -> guardband_model::Limits {
+    let Ok(bytes) = read(&root.join("guardband.toml")) else {
+        return guardband_model::Limits::default();
+    };
+    let text = String::from_utf8_lossy(&bytes);
+    match text.parse::<toml::Table>() {
+        Ok(t) => match t.get("limits").and_then(toml::Value::as_table) {
+            Some(l) => parse_limits(l).0,
+            None => guardband_model::Limits::default(),
+        },
+        Err(_) => guardband_model::Limits::default(),
+    }
+}
+
 impl Config {
     /// Reads `guardband.toml` at the workspace root, if present. Problems are
     /// diagnostics in that file (added to the workspace so they can be shown);
@@ -176,6 +296,7 @@ impl Config {
             "lifetime",
             "deny",
             "rules",
+            "limits",
         ];
         for (key, value) in &table {
             match key.as_str() {
@@ -239,6 +360,20 @@ impl Config {
                         key,
                         "`deny` takes a list holding \"warnings\"".into(),
                         "write `deny = [\"warnings\"]`",
+                    )),
+                },
+                "limits" => match value.as_table() {
+                    Some(table) => {
+                        let (limits, problems) = parse_limits(table);
+                        config.limits = limits;
+                        for (k, msg, help) in problems {
+                            diags.push(bad(&k, msg, &help));
+                        }
+                    }
+                    None => diags.push(bad(
+                        key,
+                        "`limits` must be a table".into(),
+                        "write `[limits]` and then e.g. `max_file_size = \"16 MiB\"`",
                     )),
                 },
                 "rules" => match value.as_table() {

@@ -61,10 +61,11 @@ pub fn check_workspace(
     read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
 ) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
     let mut diagnostics = Vec::new();
-    let mut ws = guardband_model::load_with(root, entries, read, &mut diagnostics)?;
+    let limits = config::limits_at(root, read);
+    let mut ws = guardband_model::load_with(root, entries, read, &limits, &mut diagnostics)?;
     let (config, config_diagnostics) = Config::load_with(&mut ws, read);
     diagnostics.extend(config_diagnostics);
-    let (model, model_diagnostics) = guardband_model::check(&ws);
+    let (model, model_diagnostics) = guardband_model::check_with(&ws, &config.limits);
     diagnostics.extend(model_diagnostics);
     let derived: Vec<Derived> = model
         .regulators()

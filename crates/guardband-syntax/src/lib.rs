@@ -13,4 +13,6 @@ mod parser;
 pub use ast::*;
 pub use lexer::{Comment, NumberToken, Span, Token, lex};
 pub use line_index::{LineCol, LineIndex};
-pub use parser::{MAX_ERRORS, MAX_NESTING, Parse, SyntaxError, parse};
+pub use parser::{
+    HARD_MAX_NESTING, MAX_ERRORS, MAX_NESTING, Parse, SyntaxError, parse, parse_with,
+};

@@ -68,8 +68,21 @@ fn range(span: SimpleSpan) -> Span {
 
 /// Parses a whole file. Never panics; every error carries a span inside `source`.
 pub fn parse(source: &str) -> Parse {
+    parse_with(source, MAX_NESTING)
+}
+
+/// The most nesting any caller may allow: the recursive parser and the
+/// evaluator stay well inside a 256 MiB stack at this depth.
+pub const HARD_MAX_NESTING: usize = 128;
+
+/// Like [`parse`], cutting nesting deeper than `max_nesting` (at most
+/// [`HARD_MAX_NESTING`]); for configurable limits.
+pub fn parse_with(source: &str, max_nesting: usize) -> Parse {
+    let max_nesting = max_nesting.clamp(1, HARD_MAX_NESTING);
     let (tokens, comments) = lex(source);
-    let (tokens, mut errors) = limit_nesting(tokens);
+    let (tokens, mut errors) = limit_nesting(tokens, max_nesting);
+    let (tokens, unbalanced) = balance_delimiters(tokens, source.len());
+    errors.extend(unbalanced);
     let eoi: SimpleSpan = (source.len()..source.len()).into();
     let tokens: Vec<(Token<'_>, SimpleSpan)> =
         tokens.into_iter().map(|(t, s)| (t, s.into())).collect();
@@ -98,8 +111,73 @@ pub fn parse(source: &str) -> Parse {
     }
 }
 
-/// Replaces every run of tokens nested deeper than [`MAX_NESTING`] by one error token.
-fn limit_nesting(tokens: Vec<(Token<'_>, Span)>) -> (Vec<(Token<'_>, Span)>, Vec<SyntaxError>) {
+/// Makes braces and parentheses balance before parsing: an unclosed `(` is
+/// closed at the `}` or end of file that ends its block, an unclosed `{` at
+/// the end of file, and a `)` that closes nothing is dropped, each with an
+/// error at the unmatched delimiter. Without this, recovery from a file that
+/// ends inside many open blocks backtracks exponentially in their number.
+fn balance_delimiters(
+    tokens: Vec<(Token<'_>, Span)>,
+    end: usize,
+) -> (Vec<(Token<'_>, Span)>, Vec<SyntaxError>) {
+    let mut out = Vec::with_capacity(tokens.len() + 4);
+    let mut errors = Vec::new();
+    let mut open: Vec<(bool, Span)> = Vec::new(); // (is a brace, where it opened)
+    let unclosed = |brace: bool, span: Span| SyntaxError {
+        span,
+        message: if brace {
+            "this `{` is never closed".to_string()
+        } else {
+            "this `(` is never closed".to_string()
+        },
+        label: if brace {
+            "add the `}` that ends this block".to_string()
+        } else {
+            "add the `)` that ends this group".to_string()
+        },
+    };
+    for (tok, span) in tokens {
+        match tok {
+            Token::LBrace => open.push((true, span.clone())),
+            Token::LParen => open.push((false, span.clone())),
+            Token::RParen => match open.last() {
+                Some((false, _)) => {
+                    open.pop();
+                }
+                _ => {
+                    errors.push(SyntaxError {
+                        span: span.clone(),
+                        message: "this `)` closes nothing".to_string(),
+                        label: "no `(` is open here".to_string(),
+                    });
+                    continue;
+                }
+            },
+            Token::RBrace => {
+                while let Some((false, at)) = open.last().cloned() {
+                    errors.push(unclosed(false, at));
+                    out.push((Token::RParen, span.start..span.start));
+                    open.pop();
+                }
+                open.pop();
+            }
+            _ => {}
+        }
+        out.push((tok, span));
+    }
+    while let Some((brace, at)) = open.pop() {
+        errors.push(unclosed(brace, at));
+        let closer = if brace { Token::RBrace } else { Token::RParen };
+        out.push((closer, end..end));
+    }
+    (out, errors)
+}
+
+/// Replaces every run of tokens nested deeper than `max` by one error token.
+fn limit_nesting(
+    tokens: Vec<(Token<'_>, Span)>,
+    max: usize,
+) -> (Vec<(Token<'_>, Span)>, Vec<SyntaxError>) {
     let mut out = Vec::with_capacity(tokens.len());
     let mut errors = Vec::new();
     let mut depth = 0usize;
@@ -118,7 +196,7 @@ fn limit_nesting(tokens: Vec<(Token<'_>, Span)>) -> (Vec<(Token<'_>, Span)>, Vec
                     let (_, s) = cut.take().unwrap_or((0, span.clone()));
                     errors.push(SyntaxError {
                         span: s.clone(),
-                        message: format!("nesting deeper than {MAX_NESTING} levels"),
+                        message: format!("nesting deeper than {max} levels"),
                         label: "too deeply nested; simplify this expression".to_string(),
                     });
                     out.push((Token::Error, s));
@@ -126,7 +204,7 @@ fn limit_nesting(tokens: Vec<(Token<'_>, Span)>) -> (Vec<(Token<'_>, Span)>, Vec
             }
             continue;
         }
-        if opens && depth > MAX_NESTING {
+        if opens && depth > max {
             cut = Some((depth, span));
             continue;
         }
@@ -138,7 +216,7 @@ fn limit_nesting(tokens: Vec<(Token<'_>, Span)>) -> (Vec<(Token<'_>, Span)>, Vec
     if let Some((_, s)) = cut {
         errors.push(SyntaxError {
             span: s.clone(),
-            message: format!("nesting deeper than {MAX_NESTING} levels, never closed"),
+            message: format!("nesting deeper than {max} levels, never closed"),
             label: "too deeply nested".to_string(),
         });
         out.push((Token::Error, s));
