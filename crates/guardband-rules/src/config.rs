@@ -147,7 +147,7 @@ fn byte_count(value: &toml::Value) -> Option<usize> {
                 _ => return None,
             };
             let bytes = n * factor;
-            (bytes >= 1.0 && bytes < 1e15).then_some(bytes as usize)
+            (1.0..1e15).contains(&bytes).then_some(bytes as usize)
         }
         _ => None,
     }
