@@ -40,7 +40,7 @@ pub fn params(i: usize) -> Params {
     let wobble = (i % 7) as f64;
     Params {
         index: i,
-        sensed: i % 2 == 0,
+        sensed: i.is_multiple_of(2),
         load_ma: 80.0 + 10.0 * wobble,
         reference_ua: 90.0 + 5.0 * wobble,
         width_um: 300.0 + 20.0 * wobble,
