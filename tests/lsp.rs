@@ -55,6 +55,17 @@ fn doc(uri: &str) -> Value {
     json!({ "uri": uri })
 }
 
+/// Copies the examples, starts a server with `caps` and opens `file` at version 1.
+fn open_example(name: &str, file: &str, caps: Value) -> (PathBuf, PathBuf, String, String, Client) {
+    let dir = examples_copy(name);
+    let path = dir.join(file);
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, caps);
+    client.open(&u, &text, 1);
+    (dir, path, text, u, client)
+}
+
 fn start(dir: &Path, caps: Value) -> Client {
     let mut client = Client::start(dir);
     client.initialize(dir, caps, json!({ "debounceMs": 20 }));
@@ -123,12 +134,8 @@ fn lsp_tuples(diags: &[Value]) -> Vec<(String, String, u64, u64, u64, u64, Strin
 
 #[test]
 fn diagnostics_on_open_equal_the_command_line_and_clear_on_close() {
-    let dir = examples_copy("lsp-diagnostics");
-    let path = dir.join("flawed/aux_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (dir, path, _text, u, mut client) =
+        open_example("lsp-diagnostics", "flawed/aux_rail.guard", json!({}));
     let diags = client.diagnostics(&u, 1);
     assert!(!diags.is_empty());
     assert_eq!(lsp_tuples(&diags), check_tuples(&dir, &path));
@@ -199,12 +206,8 @@ fn pos_end(text: &str) -> Value {
 
 #[test]
 fn hover_shows_values_windows_and_conductor_breakdowns() {
-    let dir = examples_copy("lsp-hover");
-    let path = dir.join("sensor_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (_dir, _path, text, u, mut client) =
+        open_example("lsp-hover", "sensor_rail.guard", json!({}));
     client.diagnostics(&u, 1);
     let hover = |client: &mut Client, at: Value| -> String {
         let r = client.request(
@@ -256,12 +259,8 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
 
 #[test]
 fn hover_on_a_finding_gives_the_rule_and_the_fix() {
-    let dir = examples_copy("lsp-hover-finding");
-    let path = dir.join("flawed/aux_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (_dir, _path, _text, u, mut client) =
+        open_example("lsp-hover-finding", "flawed/aux_rail.guard", json!({}));
     let diags = client.diagnostics(&u, 1);
     let under = diags
         .iter()
@@ -280,12 +279,8 @@ fn hover_on_a_finding_gives_the_rule_and_the_fix() {
 
 #[test]
 fn inlay_hints_follow_derived_values_and_can_be_turned_off() {
-    let dir = examples_copy("lsp-inlay");
-    let path = dir.join("sensor_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (_dir, _path, text, u, mut client) =
+        open_example("lsp-inlay", "sensor_rail.guard", json!({}));
     client.diagnostics(&u, 1);
     let whole = json!({ "start": { "line": 0, "character": 0 }, "end": pos_end(&text) });
     let hints = client.request(
@@ -391,12 +386,8 @@ fn definition_references_and_rename_across_imports() {
 
 #[test]
 fn completion_offers_fields_units_names_and_choices() {
-    let dir = examples_copy("lsp-complete");
-    let path = dir.join("sensor_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (_dir, _path, text, u, mut client) =
+        open_example("lsp-complete", "sensor_rail.guard", json!({}));
     client.diagnostics(&u, 1);
     let labels = |client: &mut Client, at: Value| -> Vec<String> {
         let r = client.request(
@@ -443,12 +434,8 @@ fn completion_offers_fields_units_names_and_choices() {
 
 #[test]
 fn document_and_workspace_symbols() {
-    let dir = examples_copy("lsp-symbols");
-    let path = dir.join("sensor_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (_dir, _path, _text, u, mut client) =
+        open_example("lsp-symbols", "sensor_rail.guard", json!({}));
     let outline = client.request(
         "textDocument/documentSymbol",
         json!({ "textDocument": doc(&u) }),
@@ -572,12 +559,8 @@ fn apply(text: &str, edits: &[Value]) -> String {
 
 #[test]
 fn quick_fixes_size_metal_insert_fault_cases_and_waive() {
-    let dir = examples_copy("lsp-actions");
-    let path = dir.join("flawed/aux_rail.guard");
-    let text = std::fs::read_to_string(&path).expect("read");
-    let u = uri(&path);
-    let mut client = start(&dir, json!({}));
-    client.open(&u, &text, 1);
+    let (dir, path, text, u, mut client) =
+        open_example("lsp-actions", "flawed/aux_rail.guard", json!({}));
     let diags = client.diagnostics(&u, 1);
     let actions_at = |client: &mut Client, code: &str| -> Vec<Value> {
         let d = diags

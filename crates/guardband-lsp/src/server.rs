@@ -232,28 +232,9 @@ impl Backend {
 
     /// Schedules a check of every root with open documents (a file changed on disk).
     fn schedule_all(&self) {
-        let paths: Vec<PathBuf> = {
-            let state = self.state();
-            let mut roots: Vec<PathBuf> = state
-                .docs
-                .all()
-                .map(|d| root_for(&d.path, &state.folders))
-                .collect();
-            roots.sort();
-            roots.dedup();
-            state
-                .docs
-                .all()
-                .filter(|d| roots.contains(&root_for(&d.path, &state.folders)))
-                .map(|d| d.path.clone())
-                .collect()
-        };
-        let mut seen = HashSet::new();
-        for p in paths {
-            let root = root_for(&p, &self.state().folders);
-            if seen.insert(root) {
-                self.schedule(&p);
-            }
+        let roots = open_roots(&self.state());
+        for (_, path) in roots {
+            self.schedule(&path);
         }
     }
 
@@ -343,6 +324,18 @@ impl Backend {
             self.state().settings.update(v);
         }
     }
+}
+
+/// Each workspace root with open documents, with the path of one of them.
+fn open_roots(state: &State) -> Vec<(PathBuf, PathBuf)> {
+    let mut roots: Vec<(PathBuf, PathBuf)> = state
+        .docs
+        .all()
+        .map(|d| (root_for(&d.path, &state.folders), d.path.clone()))
+        .collect();
+    roots.sort();
+    roots.dedup_by(|a, b| a.0 == b.0);
+    roots
 }
 
 fn capabilities(encoding: Encoding, pull: bool) -> ServerCapabilities {
@@ -663,20 +656,10 @@ impl LanguageServer for Backend {
         &self,
         params: WorkspaceSymbolParams,
     ) -> Result<Option<WorkspaceSymbolResponse>> {
-        let roots: Vec<PathBuf> = {
-            let state = self.state();
-            let mut roots: Vec<PathBuf> = state
-                .docs
-                .all()
-                .map(|d| root_for(&d.path, &state.folders))
-                .collect();
-            roots.sort();
-            roots.dedup();
-            roots
-        };
+        let roots = open_roots(&self.state());
         let encoding = self.state().encoding;
         let mut out = Vec::new();
-        for root in roots {
+        for (root, _) in roots {
             let analysis = self.analysis_of_root(root).await?;
             let query = params.query.clone();
             let found = self

@@ -63,20 +63,25 @@ impl LineIndex {
     /// The byte offset of a 0-based line and UTF-8 (byte) column, clamped like
     /// [`LineIndex::offset_utf16`]; a column inside a character snaps back to its start.
     pub fn offset_utf8(&self, line: u32, col: u32) -> usize {
-        let Some(&start) = self.line_starts.get(line as usize) else {
+        let Some((start, line_text)) = self.line(line) else {
             return self.text.len();
         };
-        let end = self
-            .line_starts
-            .get(line as usize + 1)
-            .map(|e| e - 1)
-            .unwrap_or(self.text.len());
-        let line_text = self.text[start..end].trim_end_matches('\r');
         let mut offset = start + (col as usize).min(line_text.len());
         while !self.text.is_char_boundary(offset) {
             offset -= 1;
         }
         offset
+    }
+
+    /// Where a 0-based line starts and its text without the line end.
+    fn line(&self, line: u32) -> Option<(usize, &str)> {
+        let start = *self.line_starts.get(line as usize)?;
+        let end = self
+            .line_starts
+            .get(line as usize + 1)
+            .map(|e| e - 1)
+            .unwrap_or(self.text.len());
+        Some((start, self.text[start..end].trim_end_matches('\r')))
     }
 
     /// The text this index was built from.
@@ -87,15 +92,9 @@ impl LineIndex {
     /// The byte offset of a 0-based line and UTF-16 column; clamps past-the-end
     /// lines to the end of the text and past-the-end columns to the line end.
     pub fn offset_utf16(&self, line: u32, col: u32) -> usize {
-        let Some(&start) = self.line_starts.get(line as usize) else {
+        let Some((start, line_text)) = self.line(line) else {
             return self.text.len();
         };
-        let end = self
-            .line_starts
-            .get(line as usize + 1)
-            .map(|e| e - 1)
-            .unwrap_or(self.text.len());
-        let line_text = self.text[start..end].trim_end_matches('\r');
         let mut units = 0u32;
         for (i, c) in line_text.char_indices() {
             if units >= col {
