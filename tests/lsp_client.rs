@@ -151,33 +151,11 @@ impl Client {
     }
 
     /// The next message matching `want`, answering server requests and
-    /// keeping other messages for later waits.
+    /// keeping other messages for later waits; fails after [`TIMEOUT`].
     pub fn wait_for(&mut self, want: impl Fn(&Value) -> bool) -> Value {
-        if let Some(i) = self.pending.iter().position(&want) {
-            return self.pending.remove(i);
-        }
-        let deadline = Instant::now() + TIMEOUT;
-        loop {
-            let left = deadline.saturating_duration_since(Instant::now());
-            match self.incoming.recv_timeout(left) {
-                Ok(m) => {
-                    if m.get("method").is_some() && m.get("id").is_some() {
-                        self.answer(&m);
-                        if want(&m) {
-                            return m;
-                        }
-                        continue;
-                    }
-                    if want(&m) {
-                        return m;
-                    }
-                    self.pending.push(m);
-                }
-                Err(RecvTimeoutError::Timeout) => panic!("timed out; pending: {:?}", self.pending),
-                Err(RecvTimeoutError::Disconnected) => {
-                    panic!("server went away; pending: {:?}", self.pending)
-                }
-            }
+        match self.next_within(TIMEOUT, want) {
+            Ok(m) => m,
+            Err(why) => panic!("{why}; pending: {:?}", self.pending),
         }
     }
 
@@ -187,8 +165,16 @@ impl Client {
         wait: Duration,
         want: impl Fn(&Value) -> bool,
     ) -> Option<Value> {
+        self.next_within(wait, want).ok()
+    }
+
+    fn next_within(
+        &mut self,
+        wait: Duration,
+        want: impl Fn(&Value) -> bool,
+    ) -> Result<Value, &'static str> {
         if let Some(i) = self.pending.iter().position(&want) {
-            return Some(self.pending.remove(i));
+            return Ok(self.pending.remove(i));
         }
         let deadline = Instant::now() + wait;
         loop {
@@ -199,11 +185,12 @@ impl Client {
                         self.answer(&m);
                     }
                     if want(&m) {
-                        return Some(m);
+                        return Ok(m);
                     }
                     self.pending.push(m);
                 }
-                Err(_) => return None,
+                Err(RecvTimeoutError::Timeout) => return Err("timed out"),
+                Err(RecvTimeoutError::Disconnected) => return Err("server went away"),
             }
         }
     }

@@ -37,6 +37,26 @@ pub fn write(checked: &Checked, out: &Path) -> std::io::Result<Vec<PathBuf>> {
     Ok(written)
 }
 
+/// One finding as a list item, naming its file when `with_file`.
+fn finding(
+    ws: &guardband_model::Workspace,
+    d: &guardband_model::Diagnostic,
+    with_file: bool,
+) -> String {
+    let at = ws.file(d.file).line_index.line_col(d.span.start);
+    let place = if with_file {
+        format!("in {} at line {}", ws.file(d.file).display, at.line + 1)
+    } else {
+        format!("at line {}, column {}", at.line + 1, at.chars + 1)
+    };
+    format!(
+        "- **{}** `{}` {place}: {}",
+        d.severity.as_str(),
+        d.rule,
+        d.message
+    )
+}
+
 /// The summary text and each regulator's chart (name, SVG text).
 pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     let model = &checked.model;
@@ -104,16 +124,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
             let _ = writeln!(md, "None.\n");
         }
         for d in findings {
-            let at = ws.file(d.file).line_index.line_col(d.span.start);
-            let _ = writeln!(
-                md,
-                "- **{}** `{}` at line {}, column {}: {}",
-                d.severity.as_str(),
-                d.rule,
-                at.line + 1,
-                at.chars + 1,
-                d.message
-            );
+            let _ = writeln!(md, "{}", finding(ws, d, false));
         }
         md.push('\n');
         charts.push((reg.key().to_string(), chart::chart(&f).to_string()));
@@ -130,16 +141,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     if !elsewhere.is_empty() {
         let _ = writeln!(md, "## Findings outside any regulator\n");
         for d in elsewhere {
-            let at = ws.file(d.file).line_index.line_col(d.span.start);
-            let _ = writeln!(
-                md,
-                "- **{}** `{}` in {} at line {}: {}",
-                d.severity.as_str(),
-                d.rule,
-                ws.file(d.file).display,
-                at.line + 1,
-                d.message
-            );
+            let _ = writeln!(md, "{}", finding(ws, d, true));
         }
     }
     (md, charts)
