@@ -104,7 +104,15 @@ fn add_block(
         header_span: header_span(block),
         name_span: block.key().span.clone(),
         parent,
-        fields: Vec::new(),
+        // Sized up front: a block of many fields would otherwise waste up to
+        // half of its field list to growth.
+        fields: Vec::with_capacity(
+            block
+                .members
+                .iter()
+                .filter(|m| matches!(m, Member::Field(_)))
+                .count(),
+        ),
         children: Vec::new(),
         path,
     });
