@@ -990,3 +990,21 @@ fn a_panicking_handler_answers_an_internal_error_and_the_session_goes_on() {
     assert_eq!(symbols[0]["name"], "r");
     assert_eq!(client.stop(), Some(0));
 }
+
+#[test]
+fn configuration_problems_are_published_on_guardband_toml() {
+    let dir = temp_dir("lsp-config");
+    std::fs::write(dir.join("guardband.toml"), "margin = \"lots\"\n").expect("config");
+    let path = dir.join("a.guard");
+    let text = "regulator r {\n    load = 0 mA .. 1 mA\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let dir = dir.canonicalize().expect("canonical");
+    let u = uri(&dir.join("a.guard"));
+    let config = uri(&dir.join("guardband.toml"));
+    let mut client = start(&dir, json!({}));
+    client.open(&u, text, 1);
+    let published = client.diagnostics_where(&config, |d| !d.is_empty());
+    assert_eq!(published[0]["code"], "config", "{published:?}");
+    assert_eq!(published[0]["range"]["start"]["line"], 0);
+    assert_eq!(client.stop(), Some(0));
+}

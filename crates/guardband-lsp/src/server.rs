@@ -145,7 +145,18 @@ impl Backend {
                 if state.analyses.len() >= MAX_ROOTS && !state.analyses.contains_key(&root) {
                     state.analyses.clear();
                 }
-                let old = state.analyses.insert(root, Arc::clone(&analysis));
+                // Two checks of one root can overlap; never let the one that
+                // finishes last replace a cached analysis of newer text.
+                let now = Self::documents_under(&state, &root);
+                let keep_cached = state
+                    .analyses
+                    .get(&root)
+                    .is_some_and(|a| a.is_current(&now) && !analysis.is_current(&now));
+                let old = if keep_cached {
+                    None
+                } else {
+                    state.analyses.insert(root, Arc::clone(&analysis))
+                };
                 drop(state);
                 // Freeing a large analysis takes a while; not on the way to the diagnostics.
                 if let Some(old) = old {
@@ -274,7 +285,8 @@ impl Backend {
             )
         };
         let mut batches = Vec::new();
-        let mut extra = HashSet::new();
+        // (configuration file, whether it now has diagnostics)
+        let mut extra: Vec<(Uri, bool)> = Vec::new();
         for file in &analysis.checked.ws.files {
             let diagnostics = features::diagnostics::convert(&analysis, file.id, encoding, related);
             match current.get(&file.path) {
@@ -284,9 +296,7 @@ impl Backend {
                 Some(_) => {}
                 None if file.path.file_name().is_some_and(|n| n == "guardband.toml") => {
                     if let Some(uri) = analysis.uri(file.id) {
-                        if !diagnostics.is_empty() {
-                            extra.insert(uri.clone());
-                        }
+                        extra.push((uri.clone(), !diagnostics.is_empty()));
                         if !diagnostics.is_empty() || previous_extra.contains(&uri) {
                             batches.push((uri, diagnostics, None));
                         }
@@ -295,7 +305,16 @@ impl Backend {
                 None => {}
             }
         }
-        self.state().published_extra = extra;
+        {
+            let mut state = self.state();
+            for (uri, has_diagnostics) in extra {
+                if has_diagnostics {
+                    state.published_extra.insert(uri);
+                } else {
+                    state.published_extra.remove(&uri);
+                }
+            }
+        }
         for (uri, diagnostics, version) in batches {
             self.client
                 .publish_diagnostics(uri, diagnostics, version)
