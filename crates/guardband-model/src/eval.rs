@@ -145,22 +145,12 @@ impl<'a> Evaluator<'a> {
         }
         self.states[node.0 as usize][index] = State::InProgress;
         self.stack.push((node, index));
-        // Borrow the expression out of the model while it is evaluated (nothing
-        // reads an in-progress field's expression), instead of cloning it.
+        // The expression is shared with the syntax tree: a handle, not a copy.
         let (expr, ty, key) = {
-            let f = &mut self.model.nodes[node.0 as usize].fields[index];
-            let placeholder = Expr {
-                kind: ExprKind::Error,
-                span: f.expr.span.clone(),
-            };
-            (
-                std::mem::replace(&mut f.expr, placeholder),
-                f.spec.ty,
-                f.key.clone(),
-            )
+            let f = &self.model.nodes[node.0 as usize].fields[index];
+            (std::sync::Arc::clone(&f.expr), f.spec.ty, f.key.clone())
         };
         let result = self.typed(node, &expr, ty, &key);
-        self.model.nodes[node.0 as usize].fields[index].expr = expr;
         self.stack.pop();
         if self.states[node.0 as usize][index] == State::Failed {
             return None;

@@ -35,7 +35,8 @@ pub struct Field {
     pub key: String,
     pub key_span: Span,
     pub relation: Relation,
-    pub expr: Expr,
+    /// The value as written, shared with the syntax tree.
+    pub expr: std::sync::Arc<Expr>,
     /// The whole field.
     pub span: Span,
     pub spec: &'static FieldSpec,

@@ -93,7 +93,8 @@ pub struct Field {
     pub keyword: Ident,
     pub name: Option<Ident>,
     pub relation: Relation,
-    pub value: Expr,
+    /// Shared with the model, which evaluates it without copying it.
+    pub value: std::sync::Arc<Expr>,
     pub span: Span,
 }
 

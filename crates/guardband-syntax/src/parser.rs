@@ -585,7 +585,7 @@ where
                     keyword,
                     name,
                     relation,
-                    value,
+                    value: std::sync::Arc::new(value),
                     span: range(e.span()),
                 }),
                 Tail::Body(members) => Member::Block(Block {
