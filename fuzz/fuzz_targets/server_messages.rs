@@ -31,6 +31,7 @@ fuzz_target!(|data: &[u8]| {
         uri.clone(),
         "regulator r {\n    load = 0 mA .. 1 mA // µ 𝄞\n}\n".into(),
         0,
+        &[],
     );
     for (version, chunk) in data.chunks(6).enumerate() {
         if chunk.len() < 6 {

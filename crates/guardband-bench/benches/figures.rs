@@ -228,6 +228,7 @@ fn main() {
         let mut doc = Document {
             uri,
             path: path.clone(),
+            root: root.clone(),
             text,
             version: 1,
         };

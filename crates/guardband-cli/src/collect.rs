@@ -2,6 +2,21 @@
 
 use std::path::{Path, PathBuf};
 
+/// The `.guard` files the user named, or those under `default` when no path
+/// was given; returns the paths as given (after the default) and the files.
+pub fn files_or(
+    paths: Vec<PathBuf>,
+    default: PathBuf,
+) -> Result<(Vec<PathBuf>, Vec<PathBuf>), String> {
+    let paths = if paths.is_empty() {
+        vec![default]
+    } else {
+        paths
+    };
+    let files = guard_files(&paths)?;
+    Ok((paths, files))
+}
+
 /// Expands files and folders into a sorted list of `.guard` files.
 ///
 /// A path given explicitly is taken whatever its extension; folders are

@@ -223,18 +223,10 @@ fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCod
             return Err(ExitCode::from(2));
         }
     };
-    let paths = if paths.is_empty() {
-        vec![cwd.clone()]
-    } else {
-        paths
-    };
-    let files = match collect::guard_files(&paths) {
-        Ok(f) => f,
-        Err(msg) => {
-            eprintln!("guardband: {msg}");
-            return Err(ExitCode::from(2));
-        }
-    };
+    let (paths, files) = collect::files_or(paths, cwd.clone()).map_err(|msg| {
+        eprintln!("guardband: {msg}");
+        ExitCode::from(2)
+    })?;
     let root = collect::workspace_root(&paths[0], &cwd);
     match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
         Ok(c) => Ok(c),
@@ -268,13 +260,8 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
 }
 
 fn fmt(paths: Vec<PathBuf>, check_only: bool) -> ExitCode {
-    let paths = if paths.is_empty() {
-        vec![PathBuf::from(".")]
-    } else {
-        paths
-    };
-    let files = match collect::guard_files(&paths) {
-        Ok(f) => f,
+    let files = match collect::files_or(paths, PathBuf::from(".")) {
+        Ok((_, files)) => files,
         Err(msg) => {
             eprintln!("guardband: {msg}");
             return ExitCode::from(2);

@@ -5,6 +5,7 @@
 //! analyses read copies of this state, so they can never lose an edit.
 
 use crate::encoding::Encoding;
+use crate::engine::root_for;
 use guardband_syntax::LineIndex;
 use std::collections::HashMap;
 use std::path::PathBuf;
@@ -16,6 +17,9 @@ pub struct Document {
     pub uri: Uri,
     /// The path the checker knows it by (canonical when it exists on disk).
     pub path: PathBuf,
+    /// Its workspace root, found once when it is opened (and again when
+    /// files change on disk), not on every keystroke.
+    pub root: PathBuf,
     pub text: String,
     pub version: i32,
 }
@@ -46,18 +50,28 @@ pub fn uri_path(uri: &Uri) -> PathBuf {
 }
 
 impl Documents {
-    /// Opens (or reopens) a document.
-    pub fn open(&mut self, uri: Uri, text: String, version: i32) {
+    /// Opens (or reopens) a document; `folders` are the client's workspace folders.
+    pub fn open(&mut self, uri: Uri, text: String, version: i32, folders: &[PathBuf]) -> &Document {
         let path = uri_path(&uri);
+        let root = root_for(&path, folders);
         self.by_uri.insert(
             uri.clone(),
             Document {
-                uri,
+                uri: uri.clone(),
                 path,
+                root,
                 text,
                 version,
             },
         );
+        &self.by_uri[&uri]
+    }
+
+    /// Finds every document's root again (a `guardband.toml` may have come or gone).
+    pub fn reroot(&mut self, folders: &[PathBuf]) {
+        for doc in self.by_uri.values_mut() {
+            doc.root = root_for(&doc.path, folders);
+        }
     }
 
     /// Applies a batch of changes in order. A range is taken in `encoding`;
@@ -133,7 +147,7 @@ mod tests {
     #[test]
     fn applies_edits_in_utf16_and_utf8() {
         let mut docs = Documents::default();
-        docs.open(uri(), "x = 1 µF // 𝄞\ny".into(), 1);
+        docs.open(uri(), "x = 1 µF // 𝄞\ny".into(), 1, &[]);
         // After "x = 1 µF // 𝄞" the UTF-16 column is 13 (𝄞 is two units); in UTF-8 it is 17,
         // so after the inserted "!" it is 18.
         docs.change(&uri(), 2, vec![edit(0, 13, 0, 13, "!")], Encoding::Utf16)
@@ -147,7 +161,7 @@ mod tests {
     #[test]
     fn reversed_and_past_the_end_ranges_are_safe() {
         let mut docs = Documents::default();
-        docs.open(uri(), "abc\ndef".into(), 1);
+        docs.open(uri(), "abc\ndef".into(), 1, &[]);
         docs.change(&uri(), 2, vec![edit(0, 2, 0, 1, "X")], Encoding::Utf16)
             .expect("applies");
         assert_eq!(docs.get(&uri()).expect("open").text, "aXc\ndef");
@@ -163,7 +177,7 @@ mod tests {
             docs.change(&uri(), 1, vec![], Encoding::Utf16),
             Err(ChangeError::NotOpen)
         );
-        docs.open(uri(), "a".into(), 5);
+        docs.open(uri(), "a".into(), 5, &[]);
         assert_eq!(
             docs.change(&uri(), 4, vec![edit(0, 0, 0, 0, "b")], Encoding::Utf16),
             Err(ChangeError::StaleVersion { have: 5, got: 4 })

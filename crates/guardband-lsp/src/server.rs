@@ -8,7 +8,7 @@
 
 use crate::documents::{ChangeError, Document, Documents, uri_path};
 use crate::encoding::Encoding;
-use crate::engine::{Analysis, Workers, root_for};
+use crate::engine::{Analysis, Workers};
 use crate::features;
 use serde_json::Value;
 use std::collections::{HashMap, HashSet};
@@ -114,7 +114,7 @@ impl Backend {
         state
             .docs
             .all()
-            .filter(|d| root_for(&d.path, &state.folders) == root)
+            .filter(|d| d.root == root)
             .cloned()
             .collect()
     }
@@ -181,15 +181,14 @@ impl Backend {
         &self,
         uri: &Uri,
     ) -> Result<Option<(Arc<Analysis>, guardband_model::FileId)>> {
-        let root = {
+        let (root, path) = {
             let state = self.state();
             let Some(doc) = state.docs.get(uri) else {
                 return Ok(None);
             };
-            root_for(&doc.path, &state.folders)
+            (doc.root.clone(), doc.path.clone())
         };
         let analysis = self.analysis_of_root(root).await?;
-        let path = uri_path(uri);
         Ok(analysis.file_id(&path).map(|id| (analysis, id)))
     }
 
@@ -222,14 +221,13 @@ impl Backend {
         }
     }
 
-    /// Schedules a debounced check of the root holding `path`.
-    fn schedule(&self, path: &Path) {
-        let (root, generation, delay) = {
+    /// Schedules a debounced check of `root`.
+    fn schedule(&self, root: PathBuf) {
+        let (generation, delay) = {
             let mut state = self.state();
-            let root = root_for(path, &state.folders);
             let g = state.generation.entry(root.clone()).or_insert(0);
             *g += 1;
-            (root, *g, state.settings.debounce)
+            (*g, state.settings.debounce)
         };
         let backend = self.handle();
         tokio::spawn(async move {
@@ -244,8 +242,8 @@ impl Backend {
     /// Schedules a check of every root with open documents (a file changed on disk).
     fn schedule_all(&self) {
         let roots = open_roots(&self.state());
-        for (_, path) in roots {
-            self.schedule(&path);
+        for root in roots {
+            self.schedule(root);
         }
     }
 
@@ -288,14 +286,17 @@ impl Backend {
         // (configuration file, whether it now has diagnostics)
         let mut extra: Vec<(Uri, bool)> = Vec::new();
         for file in &analysis.checked.ws.files {
-            let diagnostics = features::diagnostics::convert(&analysis, file.id, encoding, related);
+            // Only open documents and the configuration file are published;
+            // imported files that are not open are skipped before converting.
+            let convert = || features::diagnostics::convert(&analysis, file.id, encoding, related);
             match current.get(&file.path) {
                 Some((uri, version)) if analysis.versions.get(&file.path) == Some(version) => {
-                    batches.push((uri.clone(), diagnostics, Some(*version)));
+                    batches.push((uri.clone(), convert(), Some(*version)));
                 }
                 Some(_) => {}
                 None if file.path.file_name().is_some_and(|n| n == "guardband.toml") => {
                     if let Some(uri) = analysis.uri(file.id) {
+                        let diagnostics = convert();
                         extra.push((uri.clone(), !diagnostics.is_empty()));
                         if !diagnostics.is_empty() || previous_extra.contains(&uri) {
                             batches.push((uri, diagnostics, None));
@@ -345,15 +346,11 @@ impl Backend {
     }
 }
 
-/// Each workspace root with open documents, with the path of one of them.
-fn open_roots(state: &State) -> Vec<(PathBuf, PathBuf)> {
-    let mut roots: Vec<(PathBuf, PathBuf)> = state
-        .docs
-        .all()
-        .map(|d| (root_for(&d.path, &state.folders), d.path.clone()))
-        .collect();
+/// Each workspace root with open documents.
+fn open_roots(state: &State) -> Vec<PathBuf> {
+    let mut roots: Vec<PathBuf> = state.docs.all().map(|d| d.root.clone()).collect();
     roots.sort();
-    roots.dedup_by(|a, b| a.0 == b.0);
+    roots.dedup();
     roots
 }
 
@@ -495,9 +492,16 @@ impl LanguageServer for Backend {
 
     async fn did_open(&self, params: DidOpenTextDocumentParams) {
         let doc = params.text_document;
-        let path = uri_path(&doc.uri);
-        self.state().docs.open(doc.uri, doc.text, doc.version);
-        self.schedule(&path);
+        let root = {
+            let mut state = self.state();
+            let folders = state.folders.clone();
+            state
+                .docs
+                .open(doc.uri, doc.text, doc.version, &folders)
+                .root
+                .clone()
+        };
+        self.schedule(root);
     }
 
     async fn did_change(&self, params: DidChangeTextDocumentParams) {
@@ -505,15 +509,19 @@ impl LanguageServer for Backend {
         let outcome = {
             let mut state = self.state();
             let encoding = state.encoding;
-            state.docs.change(
-                &uri,
-                params.text_document.version,
-                params.content_changes,
-                encoding,
-            )
+            state
+                .docs
+                .change(
+                    &uri,
+                    params.text_document.version,
+                    params.content_changes,
+                    encoding,
+                )
+                .map(|()| state.docs.get(&uri).map(|d| d.root.clone()))
         };
         match outcome {
-            Ok(()) => self.schedule(&uri_path(&uri)),
+            Ok(Some(root)) => self.schedule(root),
+            Ok(None) => {}
             Err(ChangeError::NotOpen) => {
                 self.log(format!(
                     "guardband: ignored a change to {}, which is not open",
@@ -532,7 +540,14 @@ impl LanguageServer for Backend {
     }
 
     async fn did_save(&self, params: DidSaveTextDocumentParams) {
-        self.schedule(&uri_path(&params.text_document.uri));
+        let root = self
+            .state()
+            .docs
+            .get(&params.text_document.uri)
+            .map(|d| d.root.clone());
+        if let Some(root) = root {
+            self.schedule(root);
+        }
     }
 
     async fn did_close(&self, params: DidCloseTextDocumentParams) {
@@ -542,13 +557,19 @@ impl LanguageServer for Backend {
             if !self.state().support.pull_diagnostics {
                 self.client.publish_diagnostics(uri, Vec::new(), None).await;
             }
-            self.schedule(&doc.path);
+            self.schedule(doc.root);
         }
     }
 
     async fn did_change_watched_files(&self, _: DidChangeWatchedFilesParams) {
-        // Files on disk changed: no cached analysis can be trusted.
-        self.state().analyses.clear();
+        // Files on disk changed: no cached analysis can be trusted, and a
+        // guardband.toml may have come or gone.
+        {
+            let mut state = self.state();
+            state.analyses.clear();
+            let folders = state.folders.clone();
+            state.docs.reroot(&folders);
+        }
         self.schedule_all();
     }
 
@@ -678,7 +699,7 @@ impl LanguageServer for Backend {
         let roots = open_roots(&self.state());
         let encoding = self.state().encoding;
         let mut out = Vec::new();
-        for (root, _) in roots {
+        for root in roots {
             let analysis = self.analysis_of_root(root).await?;
             let query = params.query.clone();
             let found = self

@@ -211,83 +211,68 @@ pub fn load_with(
             .collect();
         let mut imports = Vec::new();
         for u in &uses {
-            let target = normalize(&dir.join(&u.path));
-            if !target.starts_with(&root) {
-                diagnostics.push(
-                    Diagnostic::error(
-                        "import-outside-workspace",
-                        id,
-                        u.path_span.clone(),
-                        format!("`{}` is outside the workspace root", u.path),
-                    )
-                    .primary("this path leaves the workspace")
-                    .help("imports must stay inside the workspace (the folder holding guardband.toml); move the shared file into it"),
-                );
-                continue;
-            }
-            let canonical = match canonical_or_known(&target) {
-                Ok(c) => c,
-                Err(_) => {
-                    diagnostics.push(
-                        Diagnostic::error(
-                            "import-not-found",
-                            id,
-                            u.path_span.clone(),
-                            format!("cannot find `{}`", u.path),
-                        )
-                        .primary("no such file")
-                        .help("paths in `use` are relative to the importing file"),
-                    );
-                    continue;
+            let problem = |rule, message: String, primary: &str, help: Option<&str>| {
+                let d = Diagnostic::error(rule, id, u.path_span.clone(), message).primary(primary);
+                match help {
+                    Some(h) => d.help(h),
+                    None => d,
                 }
             };
+            let target = normalize(&dir.join(&u.path));
+            if !target.starts_with(&root) {
+                diagnostics.push(problem(
+                    "import-outside-workspace",
+                    format!("`{}` is outside the workspace root", u.path),
+                    "this path leaves the workspace",
+                    Some("imports must stay inside the workspace (the folder holding guardband.toml); move the shared file into it"),
+                ));
+                continue;
+            }
+            let Ok(canonical) = canonical_or_known(&target) else {
+                diagnostics.push(problem(
+                    "import-not-found",
+                    format!("cannot find `{}`", u.path),
+                    "no such file",
+                    Some("paths in `use` are relative to the importing file"),
+                ));
+                continue;
+            };
             if !canonical.starts_with(&root) {
-                diagnostics.push(
-                    Diagnostic::error(
-                        "import-outside-workspace",
-                        id,
-                        u.path_span.clone(),
-                        format!(
-                            "`{}` resolves (through a link) outside the workspace root",
-                            u.path
-                        ),
-                    )
-                    .primary("this path leaves the workspace"),
-                );
+                diagnostics.push(problem(
+                    "import-outside-workspace",
+                    format!(
+                        "`{}` resolves (through a link) outside the workspace root",
+                        u.path
+                    ),
+                    "this path leaves the workspace",
+                    None,
+                ));
                 continue;
             }
             let target_id = match ws.find(&canonical) {
                 Some(t) => t,
                 None if depth + 1 > limits.max_import_depth => {
-                    diagnostics.push(
-                        Diagnostic::error(
-                            "limit",
-                            id,
-                            u.path_span.clone(),
-                            format!(
-                                "imports nested deeper than {} files; `{}` is not loaded",
-                                limits.max_import_depth, u.path
-                            ),
-                        )
-                        .primary("too deep")
-                        .help("raise `max_import_depth` under `[limits]` in guardband.toml"),
-                    );
+                    diagnostics.push(problem(
+                        "limit",
+                        format!(
+                            "imports nested deeper than {} files; `{}` is not loaded",
+                            limits.max_import_depth, u.path
+                        ),
+                        "too deep",
+                        Some("raise `max_import_depth` under `[limits]` in guardband.toml"),
+                    ));
                     continue;
                 }
                 None if ws.files.len() >= limits.max_files => {
-                    diagnostics.push(
-                        Diagnostic::error(
-                            "limit",
-                            id,
-                            u.path_span.clone(),
-                            format!(
-                                "more than {} files in one check; `{}` is not loaded",
-                                limits.max_files, u.path
-                            ),
-                        )
-                        .primary("one file too many")
-                        .help("raise `max_files` under `[limits]` in guardband.toml"),
-                    );
+                    diagnostics.push(problem(
+                        "limit",
+                        format!(
+                            "more than {} files in one check; `{}` is not loaded",
+                            limits.max_files, u.path
+                        ),
+                        "one file too many",
+                        Some("raise `max_files` under `[limits]` in guardband.toml"),
+                    ));
                     continue;
                 }
                 None => match read(&canonical) {
@@ -297,15 +282,12 @@ pub fn load_with(
                         t
                     }
                     Err(e) => {
-                        diagnostics.push(
-                            Diagnostic::error(
-                                "import-not-found",
-                                id,
-                                u.path_span.clone(),
-                                format!("cannot read `{}`: {e}", u.path),
-                            )
-                            .primary("unreadable"),
-                        );
+                        diagnostics.push(problem(
+                            "import-not-found",
+                            format!("cannot read `{}`: {e}", u.path),
+                            "unreadable",
+                            None,
+                        ));
                         continue;
                     }
                 },
