@@ -9,7 +9,6 @@ use guardband_lsp::documents::Document;
 use guardband_lsp::encoding::Encoding;
 use guardband_lsp::engine::Analysis;
 use guardband_lsp::features;
-use rayon::prelude::*;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
@@ -50,15 +49,21 @@ fn overlay(root: &Path) -> HashMap<PathBuf, Vec<u8>> {
         .collect()
 }
 
-/// The whole check plus JSON rendering of its findings, reading from memory.
-fn full_check(root: &Path, entries: &[PathBuf], files: &HashMap<PathBuf, Vec<u8>>) -> usize {
+/// The check as `guardband check` does it (each file with its imports, on
+/// `threads` threads) plus JSON rendering of its findings, reading from memory.
+fn full_check(
+    root: &Path,
+    entries: &[PathBuf],
+    files: &HashMap<PathBuf, Vec<u8>>,
+    threads: usize,
+) -> usize {
     let read = |p: &Path| -> std::io::Result<Vec<u8>> {
         files
             .get(p)
             .cloned()
             .ok_or_else(|| std::io::ErrorKind::NotFound.into())
     };
-    let checked = guardband_rules::check_workspace(root, entries, &read).expect("check");
+    let checked = guardband_rules::check_each(root, entries, &read, threads, STACK).expect("check");
     let items: Vec<serde_json::Value> = checked
         .diagnostics
         .iter()
@@ -94,7 +99,7 @@ fn main() {
     if let Some(i) = args.iter().position(|a| a == "--peak") {
         // Child mode: check the workspace generated in DIR, then report the
         // spec size and the high-water mark of this process.
-        let root = PathBuf::from(args.get(i + 1).expect("--peak DIR"));
+        let root = PathBuf::from(args.get(i + 1).expect("--peak DIR [each|whole]"));
         let mut entries: Vec<PathBuf> = std::fs::read_dir(&root)
             .expect("read dir")
             .flatten()
@@ -107,11 +112,22 @@ fn main() {
             .map(|p| std::fs::metadata(p).map(|m| m.len()).unwrap_or(0))
             .sum();
         let before = peak_kib().unwrap_or(0);
+        let whole = args.get(i + 2).is_some_and(|m| m == "whole");
         let found = on_big_stack(move || {
-            guardband_rules::check_workspace(&root, &entries, &|p| std::fs::read(p))
-                .expect("check")
-                .diagnostics
-                .len()
+            let read = |p: &Path| std::fs::read(p);
+            if whole {
+                // One model of everything, as the server and `report` hold it.
+                guardband_rules::check_workspace(&root, &entries, &read)
+                    .expect("check")
+                    .diagnostics
+                    .len()
+            } else {
+                // As `guardband check` does it, on one thread.
+                guardband_rules::check_each(&root, &entries, &read, 1, STACK)
+                    .expect("check")
+                    .diagnostics
+                    .len()
+            }
         });
         println!("{bytes} {before} {} {found}", peak_kib().unwrap_or(0));
         return;
@@ -155,7 +171,7 @@ fn main() {
         let (root, entries) = (g.root.clone(), g.entries.clone());
         let files_for_check = files.clone();
         let check =
-            on_big_stack(move || time(runs, || full_check(&root, &entries, &files_for_check)));
+            on_big_stack(move || time(runs, || full_check(&root, &entries, &files_for_check, 1)));
         let json = time(runs, || {
             serde_json::from_str::<serde_json::Value>(&g.twin).map(|v| v.is_object())
         });
@@ -180,28 +196,12 @@ fn main() {
     let root = g.root.clone();
     let one = {
         let (root, entries, files) = (root.clone(), g.entries.clone(), files.clone());
-        on_big_stack(move || {
-            time(3, || {
-                entries
-                    .iter()
-                    .map(|e| full_check(&root, std::slice::from_ref(e), &files))
-                    .sum::<usize>()
-            })
-        })
+        on_big_stack(move || time(3, || full_check(&root, &entries, &files, 1)))
     };
-    let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(cores)
-        .stack_size(STACK)
-        .build()
-        .expect("pool");
-    let all = time(3, || {
-        pool.install(|| {
-            g.entries
-                .par_iter()
-                .map(|e| full_check(&root, std::slice::from_ref(e), &files))
-                .sum::<usize>()
-        })
-    });
+    let all = {
+        let (root, entries, files) = (root.clone(), g.entries.clone(), files.clone());
+        on_big_stack(move || time(3, || full_check(&root, &entries, &files, cores)))
+    };
     println!(
         "2,000 files: one core {:.0} ms, {cores} cores {:.0} ms, speed-up {:.2}x",
         one.as_secs_f64() * 1e3,
@@ -275,11 +275,18 @@ fn main() {
     // does nothing else.
     let g = generate(&base.join("peak"), 10_000, 200).expect("generate");
     let me = std::env::current_exe().expect("exe");
-    if let Ok(out) = std::process::Command::new(me)
-        .arg("--peak")
-        .arg(&g.root)
-        .output()
-    {
+    for (mode, what) in [
+        ("each", "`guardband check` (file by file)"),
+        ("whole", "one model of everything (server, report)"),
+    ] {
+        let Ok(out) = std::process::Command::new(&me)
+            .arg("--peak")
+            .arg(&g.root)
+            .arg(mode)
+            .output()
+        else {
+            continue;
+        };
         let text = String::from_utf8_lossy(&out.stdout);
         let nums: Vec<u64> = text
             .split_whitespace()
@@ -288,7 +295,7 @@ fn main() {
         if let [bytes, before, peak, _] = nums[..] {
             let input_mb = bytes as f64 / 1e6;
             println!(
-                "peak memory, 10,000 regulators ({input_mb:.1} MB of spec): {:.0} MB ({:.0} MB before the check); goal 4 x input + 30 MB = {:.0} MB",
+                "peak memory, 10,000 regulators ({input_mb:.1} MB of spec), {what}: {:.0} MB ({:.0} MB before the check); goal 4 x input + 30 MB = {:.0} MB",
                 peak as f64 / 1024.0,
                 before as f64 / 1024.0,
                 4.0 * input_mb + 30.0

@@ -61,6 +61,9 @@ enum Command {
         /// Exit 0 even when there are findings (still 2 on usage or I/O failure).
         #[arg(long)]
         exit_zero: bool,
+        /// Files checked at once (default: one per core).
+        #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
+        jobs: Option<u16>,
     },
     /// Rewrite .guard files in the canonical layout (or, with --check, list
     /// the ones that are not).
@@ -132,7 +135,8 @@ fn run() -> ExitCode {
             deny,
             output,
             exit_zero,
-        } => check(paths, format, deny.is_some(), output, exit_zero),
+            jobs,
+        } => check(paths, format, deny.is_some(), output, exit_zero, jobs),
         Command::Explain { rule, list, format } => explain(rule, list, format),
         Command::Fmt { paths, check } => fmt(paths, check),
         Command::Report { paths, out } => report(paths, &out),
@@ -149,17 +153,34 @@ fn check(
     deny_warnings: bool,
     output: Option<PathBuf>,
     exit_zero: bool,
+    jobs: Option<u16>,
 ) -> ExitCode {
-    let checked = match load_checked(paths) {
-        Ok(c) => c,
+    let (root, files) = match find_files(paths) {
+        Ok(found) => found,
         Err(code) => return code,
     };
+    let threads = jobs.map(usize::from).unwrap_or_else(|| {
+        std::thread::available_parallelism()
+            .map(|n| n.get())
+            .unwrap_or(1)
+    });
+    // Each file is checked on its own and dropped once its findings are
+    // kept, so memory stays bounded however many files there are.
+    let checked = match guardband_rules::check_each(
+        &root,
+        &files,
+        &|p| std::fs::read(p),
+        threads,
+        STACK_BYTES,
+    ) {
+        Ok(c) => c,
+        Err((path, e)) => {
+            eprintln!("guardband: cannot read {}: {e}", path.display());
+            return ExitCode::from(2);
+        }
+    };
     let (ws, config, diagnostics) = (&checked.ws, &checked.config, &checked.diagnostics);
-    let files_checked = ws
-        .files
-        .iter()
-        .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
-        .count();
+    let files_checked = checked.files_checked;
     let errors = checked.count(guardband_model::Severity::Error);
     let warnings = checked.count(guardband_model::Severity::Warning);
     let deny = deny_warnings || config.deny_warnings;
@@ -213,9 +234,9 @@ fn check(
     }
 }
 
-/// Finds the files under `paths` and runs the whole check on them; on a
-/// usage or I/O failure prints why and returns the exit code.
-fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCode> {
+/// The workspace root and the `.guard` files under `paths`; on a usage or
+/// I/O failure prints why and returns the exit code.
+fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> {
     let cwd = match std::env::current_dir() {
         Ok(d) => d,
         Err(e) => {
@@ -227,7 +248,14 @@ fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCod
         eprintln!("guardband: {msg}");
         ExitCode::from(2)
     })?;
-    let root = collect::workspace_root(&paths[0], &cwd);
+    Ok((collect::workspace_root(&paths[0], &cwd), files))
+}
+
+/// Finds the files under `paths` and runs the whole check on them as one
+/// workspace (the model is kept, for the report); on a usage or I/O failure
+/// prints why and returns the exit code.
+fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCode> {
+    let (root, files) = find_files(paths)?;
     match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
         Ok(c) => Ok(c),
         Err((path, e)) => {

@@ -372,16 +372,32 @@ fn report_cycles(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) {
                 Mark::New => visit(ws, next, marks, stack, diagnostics),
                 Mark::Active => {
                     let start = stack.iter().position(|f| *f == next).unwrap_or(0);
-                    let mut chain: Vec<&str> = stack[start..]
+                    // The cycle is told from its first file by display path and
+                    // reported at the `use` that returns to it, so that it reads
+                    // the same whichever file the check started from.
+                    let cycle = &stack[start..];
+                    let first = (0..cycle.len())
+                        .min_by_key(|i| ws.file(cycle[*i]).display.as_str())
+                        .unwrap_or(0);
+                    let closer = cycle[(first + cycle.len() - 1) % cycle.len()];
+                    let at = ws
+                        .file(closer)
+                        .imports
                         .iter()
+                        .find(|(target, _)| *target == cycle[first])
+                        .map(|(_, s)| s.clone())
+                        .unwrap_or_else(|| span.clone());
+                    let mut chain: Vec<&str> = cycle[first..]
+                        .iter()
+                        .chain(&cycle[..first])
                         .map(|f| ws.file(*f).display.as_str())
                         .collect();
-                    chain.push(ws.file(next).display.as_str());
+                    chain.push(ws.file(cycle[first]).display.as_str());
                     diagnostics.push(
                         Diagnostic::error(
                             "cycle",
-                            id,
-                            span.clone(),
+                            closer,
+                            at,
                             format!("import cycle: {}", chain.join(" → ")),
                         )
                         .primary("this import closes the cycle")

@@ -5,6 +5,7 @@
 //! and short-circuit figures, then run the lint rules over them. Rules never
 //! parse and never print; they push diagnostics.
 
+pub mod batch;
 pub mod config;
 pub mod context;
 pub mod derive;
@@ -14,6 +15,7 @@ mod registry;
 mod rules;
 pub mod suppress;
 
+pub use batch::{Findings, check_each};
 pub use config::Config;
 pub use derive::{Derived, derive};
 pub use registry::{CAUTION, RuleInfo, registry};

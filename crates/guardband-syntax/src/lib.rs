@@ -5,6 +5,7 @@
 //! at the edges (terminal, JSON, LSP).
 
 pub mod ast;
+mod fast;
 pub mod format;
 mod lexer;
 mod line_index;
@@ -15,4 +16,5 @@ pub use lexer::{Comment, NumberToken, Span, Token, lex};
 pub use line_index::{LineCol, LineIndex};
 pub use parser::{
     HARD_MAX_NESTING, MAX_ERRORS, MAX_NESTING, Parse, SyntaxError, parse, parse_with,
+    parse_with_recovery_only, quick_pass_accepts,
 };

@@ -7,6 +7,7 @@
 
 use crate::Span;
 use crate::ast::*;
+use crate::fast::negate;
 use crate::lexer::{Comment, NumberToken, Token, lex};
 use chumsky::input::ValueInput;
 use chumsky::prelude::*;
@@ -80,6 +81,42 @@ pub const HARD_MAX_NESTING: usize = 128;
 pub fn parse_with(source: &str, max_nesting: usize) -> Parse {
     let max_nesting = max_nesting.clamp(1, HARD_MAX_NESTING);
     let (tokens, comments) = lex(source);
+    let comments = comments.into_iter().collect::<Vec<Comment>>();
+    // Most files have no error: one quick pass. Otherwise the full parse
+    // below finds every error and recovers from each.
+    if let Some(items) = crate::fast::parse_clean(source, &tokens, max_nesting) {
+        return Parse {
+            file: SourceFile { items, comments },
+            errors: Vec::new(),
+        };
+    }
+    full_parse(source, tokens, comments, max_nesting)
+}
+
+/// [`parse_with`] without the quick pass: always the chumsky parser. For the
+/// tests and fuzzers that hold the two parsers together; not for use.
+#[doc(hidden)]
+pub fn parse_with_recovery_only(source: &str, max_nesting: usize) -> Parse {
+    let max_nesting = max_nesting.clamp(1, HARD_MAX_NESTING);
+    let (tokens, comments) = lex(source);
+    full_parse(source, tokens, comments, max_nesting)
+}
+
+/// Whether the quick pass alone parses `source` (no error, nothing refused).
+#[doc(hidden)]
+pub fn quick_pass_accepts(source: &str, max_nesting: usize) -> bool {
+    let max_nesting = max_nesting.clamp(1, HARD_MAX_NESTING);
+    let (tokens, _) = lex(source);
+    crate::fast::parse_clean(source, &tokens, max_nesting).is_some()
+}
+
+/// The chumsky parse with error recovery, for files the quick pass refused.
+fn full_parse(
+    source: &str,
+    tokens: Vec<(Token<'_>, Span)>,
+    comments: Vec<Comment>,
+    max_nesting: usize,
+) -> Parse {
     let (tokens, mut errors) = limit_nesting(tokens, max_nesting);
     let (tokens, unbalanced) = balance_delimiters(tokens, source.len());
     errors.extend(unbalanced);
@@ -105,7 +142,7 @@ pub fn parse_with(source: &str, max_nesting: usize) -> Parse {
     Parse {
         file: SourceFile {
             items: items.unwrap_or_default(),
-            comments: comments.into_iter().collect::<Vec<Comment>>(),
+            comments,
         },
         errors,
     }
@@ -277,35 +314,7 @@ fn token_text(source: &str, span: SimpleSpan) -> String {
 }
 
 fn number_expr(source: &str, token: NumberToken, span: SimpleSpan) -> Expr {
-    let text = &source[span.start..span.end];
-    let value = text[..token.number_len].parse::<f64>().unwrap_or(f64::NAN);
-    let unit = token.unit_start.map(|start| Ident {
-        text: text[start..].to_string(),
-        span: span.start + start..span.end,
-    });
-    Expr {
-        kind: ExprKind::Number { value, unit },
-        span: range(span),
-    }
-}
-
-fn negate(inner: Expr, span: Span) -> Expr {
-    match inner.kind {
-        ExprKind::Number { value, unit } => Expr {
-            kind: ExprKind::Number {
-                value: -value,
-                unit,
-            },
-            span,
-        },
-        kind => Expr {
-            kind: ExprKind::Neg(Box::new(Expr {
-                kind,
-                span: inner.span,
-            })),
-            span,
-        },
-    }
+    crate::fast::number_expr(source, token, range(span))
 }
 
 fn file_parser<'t, 's: 't, I>(

@@ -1,0 +1,350 @@
+//! Checking many files with bounded memory and every core: each entry file
+//! is checked on its own, with its imports, exactly as the language server
+//! checks one open file; its findings are kept and everything else (syntax
+//! trees, model, derivations) is dropped before the next file starts.
+//!
+//! The result is the union of those single-file checks. It equals one
+//! [`crate::check_workspace`] of all the entries (a test holds the two
+//! together on every example and fixture), except where the whole-workspace
+//! check depends on the order files were loaded in: the import-depth and
+//! file-count limits count from each entry here.
+
+use crate::{Config, check_workspace};
+use guardband_model::{Diagnostic, FileId, Severity, SourceFile, Workspace};
+use rayon::prelude::*;
+use std::collections::{HashMap, HashSet};
+use std::path::{Path, PathBuf};
+
+/// What a check of many files leaves for printing: the findings, and the
+/// files they point into (text and line index, no syntax tree).
+#[derive(Debug)]
+pub struct Findings {
+    /// Only the files some finding points into; ids are indices here.
+    pub ws: Workspace,
+    /// The configuration; its `file` (if any) is an id in [`Findings::ws`].
+    pub config: Config,
+    /// Sorted by file, position and rule, as [`crate::Checked::diagnostics`].
+    pub diagnostics: Vec<Diagnostic>,
+    /// How many distinct `.guard` files were read, entries and imports.
+    pub files_checked: usize,
+}
+
+impl Findings {
+    /// Number of findings of one severity.
+    pub fn count(&self, severity: Severity) -> usize {
+        self.diagnostics
+            .iter()
+            .filter(|d| d.severity == severity)
+            .count()
+    }
+}
+
+/// One entry's check, reduced to what outlives it.
+struct Unit {
+    files: Vec<SourceFile>,
+    diagnostics: Vec<Diagnostic>,
+    config: Config,
+    guard_files: Vec<PathBuf>,
+}
+
+/// Checks every entry file on its own (with its imports) on `threads`
+/// threads, each with a stack of `stack_bytes`, and merges the findings.
+/// An unreadable entry is an error naming it, as with [`check_workspace`].
+pub fn check_each(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &(dyn Fn(&Path) -> std::io::Result<Vec<u8>> + Sync),
+    threads: usize,
+    stack_bytes: usize,
+) -> Result<Findings, (PathBuf, std::io::Error)> {
+    let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read);
+    let units: Vec<Result<Unit, (PathBuf, std::io::Error)>> = if entries.is_empty() {
+        // Nothing to check, but the configuration is still read and checked.
+        vec![check_one(root, &[], read)]
+    } else if threads <= 1 {
+        entries.iter().map(one).collect()
+    } else {
+        match rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .stack_size(stack_bytes)
+            .build()
+        {
+            Ok(pool) => pool.install(|| entries.par_iter().map(one).collect()),
+            Err(_) => entries.iter().map(one).collect(),
+        }
+    };
+    let mut merged = Merged::default();
+    let mut config = None;
+    for unit in units {
+        let unit = unit?;
+        merged.add(unit, &mut config);
+    }
+    Ok(merged.finish(root, config.unwrap_or_default()))
+}
+
+/// Checks one entry (or none: the configuration alone) and keeps only the files its findings point into.
+fn check_one(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &(dyn Fn(&Path) -> std::io::Result<Vec<u8>> + Sync),
+) -> Result<Unit, (PathBuf, std::io::Error)> {
+    let checked = check_workspace(root, entries, read)?;
+    let guard_files = checked
+        .ws
+        .files
+        .iter()
+        .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
+        .map(|f| f.path.clone())
+        .collect();
+    let mut wanted = vec![false; checked.ws.files.len()];
+    for d in &checked.diagnostics {
+        wanted[d.file.0 as usize] = true;
+        for l in &d.labels {
+            wanted[l.file.0 as usize] = true;
+        }
+    }
+    if let Some(f) = checked.config.file {
+        wanted[f.0 as usize] = true;
+    }
+    let files = checked
+        .ws
+        .files
+        .into_iter()
+        .map(|mut f| {
+            // The tree is never printed; files nobody points at are dropped whole.
+            f.parse = Default::default();
+            if !wanted[f.id.0 as usize] {
+                f.text = String::new();
+                f.line_index = guardband_syntax::LineIndex::new("");
+            }
+            f
+        })
+        .collect();
+    Ok(Unit {
+        files,
+        diagnostics: checked.diagnostics,
+        config: checked.config,
+        guard_files,
+    })
+}
+
+/// The findings of the units seen so far, with their files renumbered.
+#[derive(Default)]
+struct Merged {
+    files: Vec<SourceFile>,
+    by_path: HashMap<PathBuf, FileId>,
+    diagnostics: Vec<Diagnostic>,
+    guard_files: HashSet<PathBuf>,
+    /// For the unit being added: its file ids in the merged list.
+    ids: Vec<FileId>,
+}
+
+impl Merged {
+    fn add(&mut self, unit: Unit, config: &mut Option<Config>) {
+        let Unit {
+            files,
+            mut diagnostics,
+            config: unit_config,
+            guard_files,
+        } = unit;
+        let mut used = vec![false; files.len()];
+        for d in &diagnostics {
+            used[d.file.0 as usize] = true;
+            for l in &d.labels {
+                used[l.file.0 as usize] = true;
+            }
+        }
+        if let Some(f) = unit_config.file {
+            used[f.0 as usize] = true;
+        }
+        self.ids.clear();
+        for (i, file) in files.into_iter().enumerate() {
+            let id = match self.by_path.get(&file.path) {
+                Some(id) => *id,
+                None if used[i] => {
+                    let id = FileId(self.files.len() as u32);
+                    self.by_path.insert(file.path.clone(), id);
+                    self.files.push(SourceFile { id, ..file });
+                    id
+                }
+                None => FileId(u32::MAX),
+            };
+            self.ids.push(id);
+        }
+        for d in &mut diagnostics {
+            d.file = self.ids[d.file.0 as usize];
+            for l in &mut d.labels {
+                l.file = self.ids[l.file.0 as usize];
+            }
+        }
+        self.diagnostics.extend(diagnostics);
+        self.guard_files.extend(guard_files);
+        if config.is_none() {
+            let file = unit_config.file.map(|f| self.ids[f.0 as usize]);
+            *config = Some(Config {
+                file,
+                ..unit_config
+            });
+        }
+    }
+
+    fn finish(self, root: &Path, config: Config) -> Findings {
+        let ws = Workspace {
+            root: root.canonicalize().unwrap_or_else(|_| root.to_path_buf()),
+            files: self.files,
+        };
+        let mut diagnostics = self.diagnostics;
+        diagnostics.sort_by(|a, b| {
+            (
+                ws.file(a.file).display.as_str(),
+                a.span.start,
+                a.span.end,
+                a.rule,
+                &a.message,
+            )
+                .cmp(&(
+                    ws.file(b.file).display.as_str(),
+                    b.span.start,
+                    b.span.end,
+                    b.rule,
+                    &b.message,
+                ))
+        });
+        // An imported file's findings come once from every file importing it.
+        diagnostics.dedup();
+        Findings {
+            ws,
+            config,
+            diagnostics,
+            files_checked: self.guard_files.len(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every `.guard` file under `dir`, sorted.
+    fn guard_files(dir: &Path, out: &mut Vec<PathBuf>) {
+        let mut entries: Vec<PathBuf> = std::fs::read_dir(dir)
+            .expect("fixture folder")
+            .flatten()
+            .map(|e| e.path())
+            .collect();
+        entries.sort();
+        for p in entries {
+            if p.is_dir() {
+                guard_files(&p, out);
+            } else if p.extension().is_some_and(|e| e == "guard") {
+                out.push(p);
+            }
+        }
+    }
+
+    /// A diagnostic with its files named, so that two checks can be compared.
+    fn described(ws: &Workspace, d: &Diagnostic) -> String {
+        let labels: Vec<String> = d
+            .labels
+            .iter()
+            .map(|l| format!("{}@{:?} {}", ws.file(l.file).display, l.span, l.message))
+            .collect();
+        format!(
+            "{} {:?} {} {:?} {} | {} | {:?}",
+            ws.file(d.file).display,
+            d.span,
+            d.rule,
+            d.severity,
+            d.message,
+            labels.join("; "),
+            d.help
+        )
+    }
+
+    fn compare(root: &Path, entries: &[PathBuf]) -> usize {
+        let read = |p: &Path| std::fs::read(p);
+        let whole = check_workspace(root, entries, &read).expect("whole check");
+        let mut expected: Vec<String> = whole
+            .diagnostics
+            .iter()
+            .map(|d| described(&whole.ws, d))
+            .collect();
+        for threads in [1, 2] {
+            let each = check_each(root, entries, &read, threads, 64 << 20).expect("check each");
+            let mut found: Vec<String> = each
+                .diagnostics
+                .iter()
+                .map(|d| described(&each.ws, d))
+                .collect();
+            expected.sort();
+            found.sort();
+            assert_eq!(found, expected, "{} with {threads} threads", root.display());
+            let guard = whole
+                .ws
+                .files
+                .iter()
+                .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
+                .count();
+            assert_eq!(each.files_checked, guard);
+            assert_eq!(each.config.deny_warnings, whole.config.deny_warnings);
+        }
+        expected.len()
+    }
+
+    #[test]
+    fn file_by_file_equals_one_whole_check_on_every_example_and_fixture() {
+        let top = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
+        let mut total = 0;
+        for (root, under) in [
+            ("examples", "examples"),
+            ("tests/fixtures/diagnostics", "tests/fixtures/diagnostics"),
+            ("tests/fixtures/rules", "tests/fixtures/rules"),
+            ("tests/fixtures/report", "tests/fixtures/report"),
+            (
+                "tests/fixtures/workspaces/import_cycle",
+                "tests/fixtures/workspaces/import_cycle",
+            ),
+            (
+                "tests/fixtures/workspaces/bad_config",
+                "tests/fixtures/workspaces/bad_config",
+            ),
+            (
+                "tests/fixtures/workspaces/outside/inner",
+                "tests/fixtures/workspaces/outside",
+            ),
+        ] {
+            let mut entries = Vec::new();
+            guard_files(&top.join(under), &mut entries);
+            assert!(!entries.is_empty(), "{under}");
+            total += compare(&top.join(root), &entries);
+            // One file at a time too, as the server checks an open file.
+            for e in &entries {
+                compare(&top.join(root), std::slice::from_ref(e));
+            }
+        }
+        // The fixtures are full of findings; a comparison of nothing proves nothing.
+        assert!(total > 50, "only {total} findings compared");
+    }
+
+    #[test]
+    fn an_import_cycle_reads_the_same_from_either_end() {
+        let top = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
+        let root = top.join("tests/fixtures/workspaces/import_cycle");
+        let read = |p: &Path| std::fs::read(p);
+        let seen: Vec<Vec<String>> = ["a.guard", "b.guard"]
+            .iter()
+            .map(|f| {
+                let c = check_workspace(&root, &[root.join(f)], &read).expect("check");
+                c.diagnostics
+                    .iter()
+                    .filter(|d| d.rule == "cycle")
+                    .map(|d| described(&c.ws, d))
+                    .collect()
+            })
+            .collect();
+        assert_eq!(seen[0].len(), 1, "{seen:?}");
+        assert_eq!(seen[0], seen[1]);
+        assert!(seen[0][0].starts_with("b.guard"), "{seen:?}");
+        assert!(seen[0][0].contains("a.guard → b.guard → a.guard"));
+    }
+}
