@@ -14,6 +14,10 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 use tower_lsp_server::ls_types::{Position, Uri};
 
+/// The allocator `guardband` itself uses, so that the figures are the command's.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 const STACK: usize = 256 * 1024 * 1024;
 
 fn median(mut v: Vec<Duration>) -> Duration {

@@ -7,6 +7,11 @@ mod render;
 mod sarif;
 
 use clap::{Parser, Subcommand, ValueEnum};
+
+/// A check allocates many small, short-lived values (names, values, tree
+/// nodes); mimalloc serves them markedly faster than the system allocator.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use std::path::PathBuf;
 use std::process::ExitCode;
 

@@ -47,11 +47,11 @@ fn header_span(block: &Block) -> guardband_syntax::Span {
     block.keyword.span.start..end
 }
 
-fn add_block(
+fn add_block<'b>(
     model: &mut Model,
     file: FileId,
     spec: &'static BlockSpec,
-    block: &Block,
+    block: &'b Block,
     parent: Option<NodeId>,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> NodeId {
@@ -91,7 +91,14 @@ fn add_block(
         .map(|n| n.text.clone())
         .unwrap_or_else(|| block.keyword.text.clone());
     let path = match parent {
-        Some(p) => format!("{}.{}", model.node(p).path, key),
+        Some(p) => {
+            let parent = &model.node(p).path;
+            let mut path = compact_str::CompactString::with_capacity(parent.len() + 1 + key.len());
+            path.push_str(parent);
+            path.push('.');
+            path.push_str(&key);
+            path
+        }
         None => key,
     };
     model.nodes.push(Node {
@@ -116,15 +123,21 @@ fn add_block(
         children: Vec::new(),
         path,
     });
-    // Keys already taken in this block, with where, for duplicate checks.
-    let mut taken: std::collections::HashMap<String, guardband_syntax::Span> =
-        std::collections::HashMap::new();
-    let mut check_duplicate = |key: &str,
+    // Keys already taken in this block (keyword, and name of a named
+    // field), with where, for duplicate checks; borrowed from the tree.
+    let mut taken: rustc_hash::FxHashMap<(&str, Option<&str>), guardband_syntax::Span> =
+        Default::default();
+    taken.reserve(block.members.len());
+    let mut check_duplicate = |key: (&'b str, Option<&'b str>),
                                span: &guardband_syntax::Span,
                                what: &str,
                                diagnostics: &mut Vec<Diagnostic>|
      -> bool {
-        if let Some(first) = taken.get(key) {
+        if let Some(first) = taken.get(&key) {
+            let key = match key {
+                (k, Some(n)) => format!("{k} {n}"),
+                (k, None) => k.to_string(),
+            };
             let rule = if what == "field" {
                 "duplicate-field"
             } else {
@@ -143,7 +156,7 @@ fn add_block(
             );
             return true;
         }
-        taken.insert(key.to_string(), span.clone());
+        taken.insert(key, span.clone());
         false
     };
     for member in &block.members {
@@ -180,17 +193,13 @@ fn add_block(
                     );
                     continue;
                 }
-                let dup_key = match name {
-                    Some(n) => format!("{} {n}", f.keyword.text),
-                    None => f.keyword.text.clone(),
-                };
-                if check_duplicate(&dup_key, &f.key().span, "field", diagnostics) {
+                if check_duplicate((&f.keyword.text, name), &f.key().span, "field", diagnostics) {
                     continue;
                 }
                 let node = &mut model.nodes[id.0 as usize];
                 node.fields.push(Field {
                     keyword: f.keyword.text.clone(),
-                    name: name.map(str::to_string),
+                    name: name.map(Into::into),
                     key: f.key().text.clone(),
                     key_span: f.key().span.clone(),
                     relation: f.relation,
@@ -206,7 +215,7 @@ fn add_block(
                     continue;
                 };
                 let what = if child.named { "name" } else { "field" };
-                if check_duplicate(&b.key().text, &b.key().span, what, diagnostics) {
+                if check_duplicate((&b.key().text, None), &b.key().span, what, diagnostics) {
                     continue;
                 }
                 let child_id = add_block(model, file, child, b, Some(id), diagnostics);

@@ -7,7 +7,7 @@ use crate::suggest::did_you_mean;
 use crate::value::{Corner, SourceId, ToleranceSource, Value, ValueError};
 use crate::{Diagnostic, FileId, Workspace};
 use guardband_syntax::{BinaryOp, Expr, ExprKind, Ident, Span};
-use guardband_units::{QuantityKind, TempSense, UnitError, parse_unit};
+use guardband_units::{ParsedUnit, QuantityKind, TempSense, UnitError, parse_unit};
 
 /// Items a file can name: its own and those of the files it imports.
 pub fn visible_items(ws: &Workspace, model: &Model, file: FileId) -> Vec<NodeId> {
@@ -47,6 +47,9 @@ struct Evaluator<'a> {
     diagnostics: &'a mut Vec<Diagnostic>,
     /// The items each file can name, by file id (items never change during evaluation).
     visible: Vec<Vec<NodeId>>,
+    /// Each unit spelling met so far, parsed: a file uses a handful of
+    /// units thousands of times.
+    units: rustc_hash::FxHashMap<compact_str::CompactString, Result<ParsedUnit, UnitError>>,
     /// Expression nodes evaluated so far, and the most allowed.
     steps: u64,
     max_steps: u64,
@@ -76,6 +79,7 @@ pub fn evaluate(
         stack: Vec::new(),
         diagnostics,
         visible,
+        units: Default::default(),
         steps: 0,
         max_steps,
     };
@@ -389,10 +393,9 @@ impl<'a> Evaluator<'a> {
 
     fn new_source(&mut self, node: NodeId, key: &str, file: FileId, span: Span) -> SourceId {
         let id = SourceId(self.model.sources.len() as u32);
-        let text = self.text(file, &span);
         self.model.sources.push(ToleranceSource {
-            label: format!("{}.{}", self.model.node(node).path, key),
-            text,
+            node,
+            key: key.into(),
             file,
             span,
         });
@@ -674,7 +677,15 @@ impl<'a> Evaluator<'a> {
         let Some(unit) = unit else {
             return Some(Value::exact(QuantityKind::NONE, value));
         };
-        match parse_unit(&unit.text) {
+        let parsed = match self.units.get(&unit.text) {
+            Some(known) => known.clone(),
+            None => {
+                let parsed = parse_unit(&unit.text);
+                self.units.insert(unit.text.clone(), parsed.clone());
+                parsed
+            }
+        };
+        match parsed {
             Ok(u) => {
                 let si = u.to_si(value);
                 if !si.is_finite() {
@@ -841,7 +852,7 @@ impl<'a> Evaluator<'a> {
                     format!("unknown {what} `{}`", seg.text),
                 )
                 .primary("not found");
-                if let Some(s) = did_you_mean(&seg.text, candidates.iter().map(String::as_str)) {
+                if let Some(s) = did_you_mean(&seg.text, candidates.iter().map(|c| c.as_str())) {
                     d = d.help(format!("did you mean `{s}`?"));
                 } else if bad == 0
                     && let Some(other) = self
@@ -872,7 +883,7 @@ impl<'a> Evaluator<'a> {
         path: &[Ident],
         want_block: bool,
         trail: &mut Vec<(Span, Symbol)>,
-    ) -> Result<Target, (usize, Vec<String>)> {
+    ) -> Result<Target, (usize, Vec<compact_str::CompactString>)> {
         let (path, corner) = match path.split_last() {
             Some((last, rest)) if !rest.is_empty() => match last.text.as_str() {
                 "min" => (rest, Some(Corner::Min)),
@@ -901,7 +912,7 @@ impl<'a> Evaluator<'a> {
             candidates.extend(
                 node.children
                     .iter()
-                    .map(|c| self.model.node(*c).key().to_string()),
+                    .map(|c| self.model.node(*c).key().into()),
             );
             scope = node.parent;
         }
@@ -915,7 +926,7 @@ impl<'a> Evaluator<'a> {
                 }
                 return self.descend(item, &path[1..], corner, 1, trail);
             }
-            candidates.push(n.key().to_string());
+            candidates.push(n.key().into());
         }
         Err((0, candidates))
     }
@@ -928,7 +939,7 @@ impl<'a> Evaluator<'a> {
         corner: Option<Corner>,
         offset: usize,
         trail: &mut Vec<(Span, Symbol)>,
-    ) -> Result<Target, (usize, Vec<String>)> {
+    ) -> Result<Target, (usize, Vec<compact_str::CompactString>)> {
         let n = self.model.node(node);
         let seg = &path[0];
         let child_first = path.len() > 1 || n.fields.iter().all(|f| f.key != seg.text);
@@ -960,12 +971,9 @@ impl<'a> Evaluator<'a> {
             }
             return self.descend(c, &path[1..], corner, offset + 1, trail);
         }
-        let mut names: Vec<String> = n.fields.iter().map(|f| f.key.clone()).collect();
-        names.extend(
-            n.children
-                .iter()
-                .map(|c| self.model.node(*c).key().to_string()),
-        );
+        let mut names: Vec<compact_str::CompactString> =
+            n.fields.iter().map(|f| f.key.clone()).collect();
+        names.extend(n.children.iter().map(|c| self.model.node(*c).key().into()));
         Err((offset, names))
     }
 }

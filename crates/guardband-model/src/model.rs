@@ -4,6 +4,7 @@
 use crate::FileId;
 use crate::schema::{BlockKind, FieldSpec};
 use crate::value::{ToleranceSource, Value};
+use compact_str::CompactString;
 use guardband_syntax::{Expr, Relation, Span};
 
 /// Index of a node in [`Model::nodes`].
@@ -15,13 +16,13 @@ pub struct NodeId(pub u32);
 pub enum FieldValue {
     Quantity(Value),
     Bool(bool),
-    Choice(String),
+    Choice(CompactString),
     /// A reference to another block.
     Ref(NodeId),
     /// A circuit node: a block, and a terminal of it (`pass.gate`) when named.
     Node {
         node: NodeId,
-        terminal: Option<String>,
+        terminal: Option<CompactString>,
     },
     Text(String),
 }
@@ -29,10 +30,10 @@ pub enum FieldValue {
 /// One field as written, with its checked value (`None` when it had an error).
 #[derive(Debug, Clone)]
 pub struct Field {
-    pub keyword: String,
-    pub name: Option<String>,
+    pub keyword: CompactString,
+    pub name: Option<CompactString>,
     /// The lookup key: the name for named fields, else the keyword.
-    pub key: String,
+    pub key: CompactString,
     pub key_span: Span,
     pub relation: Relation,
     /// The value as written, shared with the syntax tree.
@@ -58,8 +59,8 @@ impl Field {
 pub struct Node {
     pub id: NodeId,
     pub kind: BlockKind,
-    pub keyword: String,
-    pub name: Option<String>,
+    pub keyword: CompactString,
+    pub name: Option<CompactString>,
     pub file: FileId,
     pub span: Span,
     /// The keyword and name, for pointing at the block itself.
@@ -70,7 +71,7 @@ pub struct Node {
     pub fields: Vec<Field>,
     pub children: Vec<NodeId>,
     /// Dotted path from the item, e.g. `probe_rail.sensed`.
-    pub path: String,
+    pub path: CompactString,
 }
 
 impl Node {

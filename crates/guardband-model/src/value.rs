@@ -15,15 +15,29 @@ use guardband_units::{QuantityKind, TempSense};
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub struct SourceId(pub u32);
 
-/// A tolerance or range as the user stated it, with where.
+/// A tolerance or range as the user stated it, with where. Its name and
+/// text are looked up when shown, so that stating one costs no strings.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ToleranceSource {
-    /// Dotted path of the field it was stated in, e.g. `probe_rail.sensed.reference`.
-    pub label: String,
-    /// The text as written, e.g. `± 18 %`.
-    pub text: String,
+    /// The block of the field it was stated in.
+    pub node: crate::NodeId,
+    /// The key of that field.
+    pub key: compact_str::CompactString,
     pub file: FileId,
+    /// The tolerance as written, e.g. `± 18 %`.
     pub span: Span,
+}
+
+impl ToleranceSource {
+    /// Dotted path of the field it was stated in, e.g. `probe_rail.sensed.reference`.
+    pub fn label(&self, model: &crate::Model) -> String {
+        format!("{}.{}", model.node(self.node).path, self.key)
+    }
+
+    /// The text as written, e.g. `± 18 %`.
+    pub fn text<'w>(&self, ws: &'w crate::Workspace) -> &'w str {
+        ws.file(self.file).text.get(self.span.clone()).unwrap_or("")
+    }
 }
 
 /// The first-order deviation of a value when one stated tolerance sits at its
@@ -44,7 +58,7 @@ pub struct Value {
     pub hi: f64,
     pub terms: Vec<Term>,
     /// The unit the user wrote, used to show results back in it.
-    pub unit: Option<String>,
+    pub unit: Option<compact_str::CompactString>,
 }
 
 /// Why an operation on values is not defined.
@@ -230,7 +244,7 @@ impl Value {
     pub fn sub(&self, other: &Value) -> Result<Value> {
         let kind = Self::additive_kind(self.kind, other.kind, true)?;
         let unit = if kind.temp == TempSense::Difference && self.kind.temp == TempSense::Absolute {
-            Some("K".to_string())
+            Some("K".into())
         } else {
             self.unit.clone().or_else(|| other.unit.clone())
         };
@@ -277,7 +291,7 @@ impl Value {
         QuantityKind { dim, temp }
     }
 
-    fn kept_unit(&self, other: &Value) -> Option<String> {
+    fn kept_unit(&self, other: &Value) -> Option<compact_str::CompactString> {
         if other.kind.dim.is_none() {
             self.unit.clone()
         } else if self.kind.dim.is_none() {

@@ -247,7 +247,7 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
         if best.as_ref().is_none_or(|b| value < b.value) {
             best = Some(WorstCurrent {
                 value,
-                unit: l.window.unit.clone(),
+                unit: l.window.unit.as_deref().map(str::to_string),
                 reason,
                 from: Some((l.node, field)),
             });
@@ -256,7 +256,7 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
     match (best, full_gate) {
         (Some(b), Some((_, fg))) if fg.hi < b.value => Some(WorstCurrent {
             value: fg.hi,
-            unit: fg.unit.clone(),
+            unit: fg.unit.as_deref().map(str::to_string),
             reason: "the full-gate current at the strong corner (below the limit)".into(),
             from: model
                 .child(reg, BlockKind::Pass)
@@ -265,7 +265,7 @@ fn worst_current(model: &Model, reg: &Node, limits: &[LimitWindow]) -> Option<Wo
         (Some(b), _) => Some(b),
         (None, Some((pass, fg))) => Some(WorstCurrent {
             value: fg.hi,
-            unit: fg.unit.clone(),
+            unit: fg.unit.as_deref().map(str::to_string),
             reason: "the full-gate current at the strong corner (no limit)".into(),
             from: Some((pass, "full_gate_current")),
         }),
@@ -666,7 +666,7 @@ pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
     Derived {
         regulator: reg.id,
         rated_load: load.map(|l| l.hi),
-        load_unit: load.and_then(|l| l.unit.clone()),
+        load_unit: load.and_then(|l| l.unit.as_deref().map(str::to_string)),
         margin: reg
             .quantity("margin")
             .map(|m| m.nom)

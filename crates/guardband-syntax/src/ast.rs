@@ -36,7 +36,8 @@ pub struct UseItem {
 /// A word with its span.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Ident {
-    pub text: String,
+    /// Inline for names up to 24 bytes: no allocation per identifier.
+    pub text: compact_str::CompactString,
     pub span: Span,
 }
 

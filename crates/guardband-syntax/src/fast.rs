@@ -97,7 +97,7 @@ impl<'s> Fast<'_, 's> {
         match self.tokens.get(self.at) {
             Some((Token::Ident(text), span)) => {
                 let ident = Ident {
-                    text: (*text).to_string(),
+                    text: (*text).into(),
                     span: span.clone(),
                 };
                 self.at += 1;
@@ -379,7 +379,7 @@ pub(crate) fn number_expr(source: &str, token: NumberToken, span: Span) -> Expr 
     let text = &source[span.clone()];
     let value = text[..token.number_len].parse::<f64>().unwrap_or(f64::NAN);
     let unit = token.unit_start.map(|start| Ident {
-        text: text[start..].to_string(),
+        text: text[start..].into(),
         span: span.start + start..span.end,
     });
     Expr {

@@ -265,7 +265,7 @@ impl<'a> Formatter<'a> {
     }
 
     fn field_line(&mut self, f: &Field) -> RunLine {
-        let mut key = f.keyword.text.clone();
+        let mut key = f.keyword.text.to_string();
         if let Some(n) = &f.name {
             key.push(' ');
             key.push_str(&n.text);

@@ -27,8 +27,15 @@ pub struct LineIndex {
 impl LineIndex {
     /// Indexes `text`. Linear in its length.
     pub fn new(text: &str) -> LineIndex {
-        let mut line_starts = vec![0];
-        line_starts.extend(text.match_indices('\n').map(|(i, _)| i + 1));
+        let mut line_starts = Vec::with_capacity(text.len() / 24 + 1);
+        line_starts.push(0);
+        // A byte scan: `\n` never occurs inside a multi-byte character.
+        line_starts.extend(
+            text.bytes()
+                .enumerate()
+                .filter(|(_, b)| *b == b'\n')
+                .map(|(i, _)| i + 1),
+        );
         LineIndex {
             text: text.to_string(),
             line_starts,

@@ -323,9 +323,8 @@ fn file_parser<'t, 's: 't, I>(
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
 {
-    let ident =
-        select! { Token::Ident(s) = e => Ident { text: s.to_string(), span: range(e.span()) } }
-            .labelled("a name");
+    let ident = select! { Token::Ident(s) = e => Ident { text: s.into(), span: range(e.span()) } }
+        .labelled("a name");
 
     let number = select! { Token::Number(n) = e => (n, e.span()) }
         .map(move |(n, span)| number_expr(source, n, span))

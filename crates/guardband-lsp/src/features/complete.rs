@@ -178,7 +178,7 @@ fn values(
         out.push(CompletionItem {
             label: n.key().to_string(),
             kind: Some(CompletionItemKind::MODULE),
-            detail: Some(n.keyword.clone()),
+            detail: Some(n.keyword.to_string()),
             ..Default::default()
         });
     }
@@ -227,7 +227,7 @@ fn resolve_block<'a>(
 fn members(model: &Model, node: &Node, out: &mut Vec<CompletionItem>) {
     for f in &node.fields {
         out.push(CompletionItem {
-            label: f.key.clone(),
+            label: f.key.to_string(),
             kind: Some(CompletionItemKind::FIELD),
             detail: Some(format!("{}: {}", node.path, f.spec.ty.describe())),
             ..Default::default()
@@ -237,7 +237,7 @@ fn members(model: &Model, node: &Node, out: &mut Vec<CompletionItem>) {
         out.push(CompletionItem {
             label: c.key().to_string(),
             kind: Some(CompletionItemKind::STRUCT),
-            detail: Some(c.keyword.clone()),
+            detail: Some(c.keyword.to_string()),
             ..Default::default()
         });
     }

@@ -6,7 +6,7 @@
 use super::locate::{self, Hit};
 use crate::encoding::Encoding;
 use crate::engine::Analysis;
-use guardband_model::{BlockKind, FieldValue, FileId, Model, Node, Symbol, Value};
+use guardband_model::{BlockKind, FieldValue, FileId, Model, Node, Symbol, Value, Workspace};
 use guardband_rules::derive::{ConductorRating, Derived, LimitWindow, statistical};
 use guardband_rules::format::{bounds, in_unit, number, percent};
 use guardband_units::{Dimension, QuantityKind};
@@ -91,9 +91,13 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
                 node.path, field.key, field.spec.doc
             );
             match &field.value {
-                Some(FieldValue::Quantity(v)) => {
-                    value(model, v, analysis.checked.config.sigma, out)
-                }
+                Some(FieldValue::Quantity(v)) => value(
+                    model,
+                    &analysis.checked.ws,
+                    v,
+                    analysis.checked.config.sigma,
+                    out,
+                ),
                 Some(FieldValue::Ref(target)) => {
                     let _ = writeln!(out, "names `{}`", model.node(*target).path);
                 }
@@ -132,7 +136,7 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
 }
 
 /// A quantity: nominal, bounds, and each stated tolerance with its share.
-fn value(model: &Model, v: &Value, sigma: f64, out: &mut String) {
+fn value(model: &Model, ws: &Workspace, v: &Value, sigma: f64, out: &mut String) {
     let unit = v.unit.as_deref();
     let show = |x: f64| in_unit(x, v.kind, unit);
     let _ = writeln!(
@@ -163,8 +167,8 @@ fn value(model: &Model, v: &Value, sigma: f64, out: &mut String) {
             out,
             "| ±{} | `{}` | `{}` | {} |",
             show_delta(c.sigma * sigma, v),
-            src.label,
-            src.text,
+            src.label(model),
+            src.text(ws),
             percent(c.share)
         );
     }
@@ -194,10 +198,10 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
         return;
     };
     match node.kind {
-        BlockKind::Regulator => regulator_summary(model, derived, out),
+        BlockKind::Regulator => regulator_summary(model, &analysis.checked.ws, derived, out),
         BlockKind::Limit => {
             if let Some(lw) = derived.limits.iter().find(|l| l.node == node.id) {
-                limit_window(model, derived, lw, out);
+                limit_window(model, &analysis.checked.ws, derived, lw, out);
             }
         }
         BlockKind::Conductor => {
@@ -217,7 +221,13 @@ fn current(x: f64, unit: Option<&str>) -> String {
 }
 
 /// The window of one limit, worst case and statistical, against the load.
-pub fn limit_window(model: &Model, derived: &Derived, lw: &LimitWindow, out: &mut String) {
+pub fn limit_window(
+    model: &Model,
+    ws: &Workspace,
+    derived: &Derived,
+    lw: &LimitWindow,
+    out: &mut String,
+) {
     let unit = lw.window.unit.as_deref().or(derived.load_unit.as_deref());
     let _ = writeln!(out, "**Limit window**\n");
     let _ = writeln!(out, "- worst case: {}", bounds(&lw.window));
@@ -256,8 +266,8 @@ pub fn limit_window(model: &Model, derived: &Derived, lw: &LimitWindow, out: &mu
             let _ = writeln!(
                 out,
                 "| `{}` | `{}` | {} |",
-                src.label,
-                src.text,
+                src.label(model),
+                src.text(ws),
                 percent(c.share)
             );
         }
@@ -386,7 +396,7 @@ fn short(derived: &Derived, out: &mut String) {
     );
 }
 
-fn regulator_summary(model: &Model, derived: &Derived, out: &mut String) {
+fn regulator_summary(model: &Model, ws: &Workspace, derived: &Derived, out: &mut String) {
     let unit = derived.load_unit.as_deref();
     if let Some(load) = derived.rated_load {
         let _ = writeln!(out, "- rated load: {}", current(load, unit));
@@ -404,7 +414,7 @@ fn regulator_summary(model: &Model, derived: &Derived, out: &mut String) {
     }
     out.push('\n');
     for lw in &derived.limits {
-        limit_window(model, derived, lw, out);
+        limit_window(model, ws, derived, lw, out);
     }
     startup(derived, out);
     short(derived, out);

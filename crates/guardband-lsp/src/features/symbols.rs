@@ -23,7 +23,7 @@ fn symbol(analysis: &Analysis, model: &Model, node: &Node, encoding: Encoding) -
     let index = &analysis.checked.ws.file(node.file).line_index;
     DocumentSymbol {
         name: node.key().to_string(),
-        detail: Some(node.keyword.clone()),
+        detail: Some(node.keyword.to_string()),
         kind: kind_of(node.kind),
         tags: None,
         deprecated: None,
@@ -64,7 +64,7 @@ pub fn workspace(analysis: &Analysis, query: &str, encoding: Encoding) -> Vec<Wo
                 name: n.key().to_string(),
                 kind: kind_of(n.kind),
                 tags: None,
-                container_name: n.parent.map(|p| model.node(p).path.clone()),
+                container_name: n.parent.map(|p| model.node(p).path.to_string()),
                 location: OneOf::Left(Location::new(
                     analysis.uri(n.file)?,
                     encoding.range(index, &n.name_span),

@@ -57,12 +57,15 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             };
             let unit = window.unit.as_deref().or(d.load_unit.as_deref());
             let show = |x: f64| in_unit(x, QuantityKind::CURRENT, unit);
-            let need = format!(
-                "rated {} + {} margin = {}",
-                show(rated),
-                percent(d.margin),
-                show(required)
-            );
+            // Only worded when there is a finding to word.
+            let need = || {
+                format!(
+                    "rated {} + {} margin = {}",
+                    show(rated),
+                    percent(d.margin),
+                    show(required)
+                )
+            };
             if window.lo <= required {
                 let mut diag = ctx
                     .at(
@@ -71,9 +74,10 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         limit,
                         key,
                         format!(
-                            "`{}` limit low edge {} is at or below {need}",
+                            "`{}` limit low edge {} is at or below {}",
                             limit.key(),
-                            show(window.lo)
+                            show(window.lo),
+                            need()
                         ),
                     )
                     .primary(format!(
@@ -91,13 +95,25 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 let ppm = crate::derive::escape_ppm(stat, required);
                 if ppm > ctx.config.escape_ppm {
                     let mut diag = ctx
-                        .at(RULE, Severity::Error, limit, key, format!(
-                            "about {} ppm of parts trip `{}` at or below {need} (allowed {} ppm)",
-                            crate::format::number(ppm), limit.key(), crate::format::number(ctx.config.escape_ppm)
-                        ))
+                        .at(
+                            RULE,
+                            Severity::Error,
+                            limit,
+                            key,
+                            format!(
+                                "about {} ppm of parts trip `{}` at or below {} (allowed {} ppm)",
+                                crate::format::number(ppm),
+                                limit.key(),
+                                need(),
+                                crate::format::number(ctx.config.escape_ppm)
+                            ),
+                        )
                         .primary(format!(
                             "statistically {} ± {} (1σ); worst case {} .. {}",
-                            show(stat.mean), show(stat.sigma), show(window.lo), show(window.hi)
+                            show(stat.mean),
+                            show(stat.sigma),
+                            show(window.lo),
+                            show(window.hi)
                         ));
                     diag = add_contributors(ctx, diag, window);
                     out.push(
@@ -127,7 +143,7 @@ fn add_contributors(
             s.span.clone(),
             format!(
                 "`{}` moves the window ± {}: {} of the variance",
-                s.label,
+                s.label(ctx.model),
                 percent(swing),
                 percent(c.share)
             ),
