@@ -311,28 +311,27 @@ fn unknown_block(file: FileId, spec: &BlockSpec, b: &Block) -> Diagnostic {
 fn report_duplicate_items(ws: &Workspace, model: &Model, diagnostics: &mut Vec<Diagnostic>) {
     for file in &ws.files {
         let visible = crate::eval::visible_items(ws, model, file.id);
-        for (i, a) in visible.iter().enumerate() {
-            let a = model.node(*a);
-            if a.name.is_none() || a.file != file.id {
+        // The first item of each name; a map, so that a file of many items
+        // is not compared item against item.
+        let mut first: rustc_hash::FxHashMap<&str, NodeId> = Default::default();
+        for id in &visible {
+            let a = model.node(*id);
+            let earlier = *first.entry(a.key()).or_insert(*id);
+            if a.name.is_none() || a.file != file.id || earlier == *id {
                 continue;
             }
-            if let Some(b) = visible[..i]
-                .iter()
-                .map(|b| model.node(*b))
-                .find(|b| b.key() == a.key())
-            {
-                diagnostics.push(
-                    Diagnostic::error(
-                        "duplicate-name",
-                        a.file,
-                        a.header_span.clone(),
-                        format!("`{}` is defined twice", a.key()),
-                    )
-                    .primary("second definition")
-                    .label(b.file, b.header_span.clone(), "first defined here")
-                    .help("give each regulator and process its own name"),
-                );
-            }
+            let b = model.node(earlier);
+            diagnostics.push(
+                Diagnostic::error(
+                    "duplicate-name",
+                    a.file,
+                    a.header_span.clone(),
+                    format!("`{}` is defined twice", a.key()),
+                )
+                .primary("second definition")
+                .label(b.file, b.header_span.clone(), "first defined here")
+                .help("give each regulator and process its own name"),
+            );
         }
     }
 }
