@@ -9,7 +9,7 @@
 //! check depends on the order files were loaded in: the import-depth and
 //! file-count limits count from each entry here.
 
-use crate::{Config, check_workspace};
+use crate::{Config, Settings, check_with_settings};
 use guardband_model::{Diagnostic, FileId, Severity, SourceFile, Workspace};
 use rayon::prelude::*;
 use std::collections::{HashMap, HashSet};
@@ -41,7 +41,9 @@ impl Findings {
 
 /// One entry's check, reduced to what outlives it.
 struct Unit {
-    files: Vec<SourceFile>,
+    /// By the unit's file ids: the files its findings point into, without
+    /// their trees; `None` for the rest.
+    files: Vec<Option<SourceFile>>,
     diagnostics: Vec<Diagnostic>,
     config: Config,
     guard_files: Vec<PathBuf>,
@@ -49,7 +51,8 @@ struct Unit {
 
 /// Checks every entry file on its own (with its imports) on `threads`
 /// threads, each with a stack of `stack_bytes`, and merges the findings.
-/// An unreadable entry is an error naming it, as with [`check_workspace`].
+/// `guardband.toml` is read once for all of them. An unreadable entry is an
+/// error naming it, as with [`crate::check_workspace`].
 pub fn check_each(
     root: &Path,
     entries: &[PathBuf],
@@ -57,10 +60,12 @@ pub fn check_each(
     threads: usize,
     stack_bytes: usize,
 ) -> Result<Findings, (PathBuf, std::io::Error)> {
-    let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read);
+    let root = &root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    let settings = &Settings::read(root, read);
+    let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read, settings);
     let units: Vec<Result<Unit, (PathBuf, std::io::Error)>> = if entries.is_empty() {
-        // Nothing to check, but the configuration is still read and checked.
-        vec![check_one(root, &[], read)]
+        // Nothing to check, but the configuration is still checked.
+        vec![check_one(root, &[], read, settings)]
     } else if threads <= 1 {
         entries.iter().map(one).collect()
     } else {
@@ -76,19 +81,20 @@ pub fn check_each(
     let mut merged = Merged::default();
     let mut config = None;
     for unit in units {
-        let unit = unit?;
-        merged.add(unit, &mut config);
+        merged.add(unit?, &mut config);
     }
     Ok(merged.finish(root, config.unwrap_or_default()))
 }
 
-/// Checks one entry (or none: the configuration alone) and keeps only the files its findings point into.
+/// Checks one entry (or none: the configuration alone) and keeps only the
+/// files its findings and its configuration point into.
 fn check_one(
     root: &Path,
     entries: &[PathBuf],
     read: &(dyn Fn(&Path) -> std::io::Result<Vec<u8>> + Sync),
+    settings: &Settings,
 ) -> Result<Unit, (PathBuf, std::io::Error)> {
-    let checked = check_workspace(root, entries, read)?;
+    let checked = check_with_settings(root, entries, read, settings)?;
     let guard_files = checked
         .ws
         .files
@@ -110,14 +116,13 @@ fn check_one(
         .ws
         .files
         .into_iter()
-        .map(|mut f| {
-            // The tree is never printed; files nobody points at are dropped whole.
-            f.parse = Default::default();
-            if !wanted[f.id.0 as usize] {
-                f.text = String::new();
-                f.line_index = guardband_syntax::LineIndex::new("");
-            }
-            f
+        .zip(wanted)
+        .map(|(f, wanted)| {
+            // The tree is never printed.
+            wanted.then(|| SourceFile {
+                parse: Default::default(),
+                ..f
+            })
         })
         .collect();
     Ok(Unit {
@@ -135,8 +140,6 @@ struct Merged {
     by_path: HashMap<PathBuf, FileId>,
     diagnostics: Vec<Diagnostic>,
     guard_files: HashSet<PathBuf>,
-    /// For the unit being added: its file ids in the merged list.
-    ids: Vec<FileId>,
 }
 
 impl Merged {
@@ -147,40 +150,32 @@ impl Merged {
             config: unit_config,
             guard_files,
         } = unit;
-        let mut used = vec![false; files.len()];
-        for d in &diagnostics {
-            used[d.file.0 as usize] = true;
-            for l in &d.labels {
-                used[l.file.0 as usize] = true;
-            }
-        }
-        if let Some(f) = unit_config.file {
-            used[f.0 as usize] = true;
-        }
-        self.ids.clear();
-        for (i, file) in files.into_iter().enumerate() {
-            let id = match self.by_path.get(&file.path) {
-                Some(id) => *id,
-                None if used[i] => {
-                    let id = FileId(self.files.len() as u32);
-                    self.by_path.insert(file.path.clone(), id);
-                    self.files.push(SourceFile { id, ..file });
-                    id
+        // The unit's file ids in the merged list (only kept files are ever looked up).
+        let ids: Vec<FileId> = files
+            .into_iter()
+            .map(|file| {
+                let Some(file) = file else {
+                    return FileId(u32::MAX);
+                };
+                if let Some(id) = self.by_path.get(&file.path) {
+                    return *id;
                 }
-                None => FileId(u32::MAX),
-            };
-            self.ids.push(id);
-        }
+                let id = FileId(self.files.len() as u32);
+                self.by_path.insert(file.path.clone(), id);
+                self.files.push(SourceFile { id, ..file });
+                id
+            })
+            .collect();
         for d in &mut diagnostics {
-            d.file = self.ids[d.file.0 as usize];
+            d.file = ids[d.file.0 as usize];
             for l in &mut d.labels {
-                l.file = self.ids[l.file.0 as usize];
+                l.file = ids[l.file.0 as usize];
             }
         }
         self.diagnostics.extend(diagnostics);
         self.guard_files.extend(guard_files);
         if config.is_none() {
-            let file = unit_config.file.map(|f| self.ids[f.0 as usize]);
+            let file = unit_config.file.map(|f| ids[f.0 as usize]);
             *config = Some(Config {
                 file,
                 ..unit_config
@@ -190,7 +185,7 @@ impl Merged {
 
     fn finish(self, root: &Path, config: Config) -> Findings {
         let ws = Workspace {
-            root: root.canonicalize().unwrap_or_else(|_| root.to_path_buf()),
+            root: root.to_path_buf(),
             files: self.files,
         };
         let mut diagnostics = self.diagnostics;
@@ -224,6 +219,7 @@ impl Merged {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::check_workspace;
 
     /// Every `.guard` file under `dir`, sorted.
     fn guard_files(dir: &Path, out: &mut Vec<PathBuf>) {

@@ -225,23 +225,73 @@ fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, S
     (limits, problems)
 }
 
-/// The `[limits]` of the guardband.toml at `root`, read before anything is
-/// loaded; a missing or broken file gives the defaults (its problems are
-/// reported when the configuration is loaded).
-pub fn limits_at(
-    root: &std::path::Path,
-    read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
-) -> guardband_model::Limits {
-    let Ok(bytes) = read(&root.join("guardband.toml")) else {
-        return guardband_model::Limits::default();
-    };
-    let text = String::from_utf8_lossy(&bytes);
-    match text.parse::<toml::Table>() {
-        Ok(t) => match t.get("limits").and_then(toml::Value::as_table) {
-            Some(l) => parse_limits(l).0,
-            None => guardband_model::Limits::default(),
-        },
-        Err(_) => guardband_model::Limits::default(),
+/// `guardband.toml` read and parsed once, then applied to any number of
+/// checks: the file-by-file check applies it to every file's check, and its
+/// `[limits]` are known before anything is loaded.
+#[derive(Debug, Clone)]
+pub struct Settings {
+    path: std::path::PathBuf,
+    /// The file's text, if there is one.
+    text: Option<String>,
+    /// Its settings, `file` not yet set.
+    config: Config,
+    /// Its problems, pointing at [`Settings::UNPLACED`] until applied.
+    diagnostics: Vec<Diagnostic>,
+}
+
+impl Settings {
+    /// The file id problems carry before the file joins a workspace.
+    const UNPLACED: FileId = FileId(u32::MAX);
+
+    /// Reads `guardband.toml` at `root` (a canonical path) through `read`;
+    /// a missing file gives the defaults.
+    pub fn read(
+        root: &std::path::Path,
+        read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
+    ) -> Settings {
+        let path = root.join("guardband.toml");
+        let Ok(bytes) = read(&path) else {
+            return Settings {
+                path,
+                text: None,
+                config: Config::default(),
+                diagnostics: Vec::new(),
+            };
+        };
+        let text = String::from_utf8_lossy(&bytes).into_owned();
+        let (config, diagnostics) = Config::parse(&text, Self::UNPLACED);
+        Settings {
+            path,
+            text: Some(text),
+            config,
+            diagnostics,
+        }
+    }
+
+    /// The limits, for loading files before the rest is applied.
+    pub fn limits(&self) -> &guardband_model::Limits {
+        &self.config.limits
+    }
+
+    /// Adds the file to `ws` (so that its problems can be shown) and
+    /// returns the settings and the problems, pointing into it.
+    pub fn apply(&self, ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
+        let Some(text) = &self.text else {
+            return (self.config.clone(), Vec::new());
+        };
+        let file = ws.add_text_file(self.path.clone(), text.clone());
+        let mut diagnostics = self.diagnostics.clone();
+        for d in &mut diagnostics {
+            d.file = file;
+            for l in &mut d.labels {
+                l.file = file;
+            }
+        }
+        let config = Config {
+            file: Some(file),
+            ..self.config.clone()
+        };
+        (config, diagnostics)
     }
 }
 
@@ -258,17 +308,16 @@ impl Config {
         ws: &mut Workspace,
         read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
     ) -> (Config, Vec<Diagnostic>) {
-        let path = ws.root.join("guardband.toml");
+        Settings::read(&ws.root, read).apply(ws)
+    }
+
+    /// The settings in `text`, with its problems as diagnostics in `file`;
+    /// the defaults stand in for any bad value.
+    fn parse(text: &str, file: FileId) -> (Config, Vec<Diagnostic>) {
         let mut config = Config::default();
-        let Ok(bytes) = read(&path) else {
-            return (config, Vec::new());
-        };
-        let text = String::from_utf8_lossy(&bytes).into_owned();
-        let file = ws.add_text_file(path, text.clone());
-        config.file = Some(file);
         let mut diags = Vec::new();
         let bad = |key: &str, msg: String, help: &str| {
-            Diagnostic::error("config", file, key_span(&text, key), msg)
+            Diagnostic::error("config", file, key_span(text, key), msg)
                 .primary("here")
                 .help(help.to_string())
         };

@@ -16,7 +16,7 @@ mod rules;
 pub mod suppress;
 
 pub use batch::{Findings, check_each};
-pub use config::Config;
+pub use config::{Config, Settings};
 pub use derive::{Derived, derive};
 pub use registry::{CAUTION, RuleInfo, registry};
 
@@ -62,10 +62,22 @@ pub fn check_workspace(
     entries: &[std::path::PathBuf],
     read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
 ) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
+    let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    check_with_settings(&root, entries, read, &Settings::read(&root, read))
+}
+
+/// [`check_workspace`] with `guardband.toml` already read from the
+/// canonical `root`, for running many checks with one configuration.
+pub fn check_with_settings(
+    root: &Path,
+    entries: &[std::path::PathBuf],
+    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    settings: &Settings,
+) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
     let mut diagnostics = Vec::new();
-    let limits = config::limits_at(root, read);
-    let mut ws = guardband_model::load_with(root, entries, read, &limits, &mut diagnostics)?;
-    let (config, config_diagnostics) = Config::load_with(&mut ws, read);
+    let mut ws =
+        guardband_model::load_with(root, entries, read, settings.limits(), &mut diagnostics)?;
+    let (config, config_diagnostics) = settings.apply(&mut ws);
     diagnostics.extend(config_diagnostics);
     let (model, model_diagnostics) = guardband_model::check_with(&ws, &config.limits);
     diagnostics.extend(model_diagnostics);
