@@ -104,7 +104,7 @@ fn sarif_of_the_examples_validates_against_the_official_schema() {
         results.len(),
         json["diagnostics"].as_array().expect("d").len()
     );
-    assert_eq!(results.len(), 13, "8 errors, 4 warnings, 1 info");
+    assert_eq!(results.len(), 22, "13 errors, 6 warnings, 3 infos");
     for (r, d) in results
         .iter()
         .zip(json["diagnostics"].as_array().expect("d"))
@@ -185,7 +185,13 @@ fn github_annotations_carry_positions_and_escape_text() {
     let run = guardband(&root().join("examples"), &["check", "--format", "github"]);
     assert_eq!(run.code, 1);
     let lines: Vec<&str> = run.stdout.lines().collect();
-    assert_eq!(lines.len(), 13, "{}", run.stdout);
+    // 22 findings, and a closing line: more than 10 errors were printed.
+    assert_eq!(lines.len(), 23, "{}", run.stdout);
+    let (last, lines) = lines.split_last().expect("lines");
+    assert!(
+        last.starts_with("guardband: printed 13 error annotations"),
+        "{last}"
+    );
     assert!(lines.iter().all(|l| l.starts_with("::error ")
         || l.starts_with("::warning ")
         || l.starts_with("::notice ")));
@@ -257,7 +263,7 @@ fn output_file_and_exit_zero() {
     assert_eq!(run.code, 1, "findings still fail without --exit-zero");
     let text = std::fs::read_to_string(&human).expect("written");
     assert!(
-        text.ends_with("8 errors, 4 warnings, 1 info in 6 files\n"),
+        text.ends_with("13 errors, 6 warnings, 3 infos in 7 files\n"),
         "{text}"
     );
     assert!(!text.contains('\u{1b}'), "no colour codes in a file");

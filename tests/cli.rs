@@ -16,7 +16,7 @@ fn examples_show_each_rule_where_documented() {
     assert!(
         run.stdout
             .trim_end()
-            .ends_with("8 errors, 4 warnings, 1 info in 6 files"),
+            .ends_with("13 errors, 6 warnings, 3 infos in 7 files"),
         "{}",
         run.stdout
     );
@@ -33,6 +33,18 @@ fn examples_show_each_rule_where_documented() {
         ("trip-uncharacterised", "flawed/wake_rail.guard"),
         ("tolerance-missing", "flawed/aux_rail.guard"),
         ("expectation-violated", "flawed/aux_rail.guard"),
+        // Without a trip current nothing bounds wake_rail's current above its
+        // threshold: a partial short overheats it and its surge is unlimited.
+        ("short-overheat", "flawed/wake_rail.guard"),
+        ("unlimited-surge", "flawed/wake_rail.guard"),
+        ("supply-surge-exceeded", "flawed/flash_rail.guard"),
+        ("pass-device-weak", "flawed/flash_rail.guard"),
+        (
+            "undervoltage-threshold-in-regulation",
+            "flawed/flash_rail.guard",
+        ),
+        ("wire-rated-at-fusing", "flawed/flash_rail.guard"),
+        ("figure-not-derived", "flawed/flash_rail.guard"),
     ];
     for d in report["diagnostics"].as_array().unwrap() {
         let rule = d["rule"].as_str().unwrap();
@@ -101,6 +113,71 @@ fn every_rule_fixture_fails_and_passes_as_named() {
     assert!(seen >= 22, "only {seen} rule fixtures");
 }
 
+/// Each slip a designer makes gives exactly the findings meant for it: the
+/// error at the slip and, where a figure could not be derived from the
+/// value in error, one note per block saying so; nothing built on the
+/// missing value.
+#[test]
+fn each_slip_gives_exactly_its_findings() {
+    let dir = fixture("slips");
+    let cases: &[(&str, &[(&str, usize)])] = &[
+        (
+            "plain_tolerance",
+            &[("unit-mismatch", 1), ("figure-not-derived", 1)],
+        ),
+        (
+            "spread_without_plus_minus",
+            &[("invalid-value", 2), ("figure-not-derived", 2)],
+        ),
+        (
+            "plus_minus_typo",
+            &[("unit-mismatch", 1), ("figure-not-derived", 1)],
+        ),
+        ("unit_on_one_end", &[("unit-mismatch", 1)]),
+        (
+            "coulomb_for_celsius",
+            &[("unit-mismatch", 1), ("figure-not-derived", 1)],
+        ),
+        (
+            "unit_spelling",
+            &[("unknown-unit", 2), ("figure-not-derived", 1)],
+        ),
+        (
+            "typo_in_a_limit",
+            &[
+                ("unknown-field", 1),
+                ("unknown-name", 1),
+                ("figure-not-derived", 2),
+            ],
+        ),
+        ("missing_brace", &[("syntax", 1)]),
+        (
+            "too_small",
+            &[("invalid-value", 1), ("figure-not-derived", 1)],
+        ),
+    ];
+    for (name, expected) in cases {
+        let (_, report) = check_json(&dir, &[&format!("{name}.guard")]);
+        let rules = rules_of(&report);
+        let mut counts: Vec<(&str, usize)> = Vec::new();
+        for r in &rules {
+            match counts.iter_mut().find(|(n, _)| n == r) {
+                Some(c) => c.1 += 1,
+                None => counts.push((r.as_str(), 1)),
+            }
+        }
+        counts.sort();
+        let mut want = expected.to_vec();
+        want.sort();
+        assert_eq!(counts, want, "{name}");
+    }
+    let names: Vec<String> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(names.len(), cases.len(), "a slip fixture without its case");
+}
+
 #[test]
 fn json_follows_the_documented_schema() {
     let dir = fixture("diagnostics");
@@ -108,7 +185,12 @@ fn json_follows_the_documented_schema() {
     assert_eq!(code, 1);
     assert_eq!(report["version"], 1);
     assert_eq!(report["files_checked"], 1);
-    let first = &report["diagnostics"][0];
+    let first = report["diagnostics"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|d| d["rule"] == "unit-mismatch")
+        .expect("a unit-mismatch");
     for key in [
         "rule", "severity", "file", "range", "message", "labels", "help",
     ] {
@@ -286,7 +368,7 @@ fn explain_lists_and_documents_every_rule() {
     assert_eq!(list.code, 0);
     let rules: serde_json::Value = serde_json::from_str(&list.stdout).unwrap();
     let rules = rules.as_array().unwrap();
-    assert_eq!(rules.len(), 11);
+    assert_eq!(rules.len(), guardband_rules::registry().len());
     for r in rules {
         for key in ["name", "default_severity", "summary"] {
             assert!(r.get(key).is_some());

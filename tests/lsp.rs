@@ -221,7 +221,7 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
         "min",
         "nominal",
         "max",
-        "Limit window",
+        "limit window",
         "worst case",
         "statistical",
         "share",
@@ -241,7 +241,7 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
     );
     let conductor = hover(&mut client, pos16(&text, "conductor pass_source", 0, 12));
     for want in [
-        "Conductor rating",
+        "conductor `pass_source` rating",
         "width 260 um",
         "thickness",
         "current density",

@@ -35,6 +35,19 @@ fn diagnostics_fixtures() {
 }
 
 #[test]
+fn slip_fixtures() {
+    let dir = fixture("slips");
+    for file in sorted(&dir) {
+        let name = file.file_name().unwrap().to_string_lossy().into_owned();
+        let run = guardband(&dir, &["check", &name]);
+        snapshot(
+            &format!("slip__{}", name.trim_end_matches(".guard")),
+            &run.stdout,
+        );
+    }
+}
+
+#[test]
 fn workspace_fixtures() {
     for ws in ["import_cycle", "outside/inner", "bad_config"] {
         let run = guardband(&fixture(&format!("workspaces/{ws}")), &["check", "."]);

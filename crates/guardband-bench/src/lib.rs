@@ -57,6 +57,7 @@ pub fn regulator(p: &Params) -> String {
         ratio       = 2000
         reference   = {} uA ± fab.trimmed
         mismatch    = ± 5 %
+        drain_error = ± 4 %
         threshold   = ratio * reference
         clamp_drive = 80 uA .. 150 uA
     }}
@@ -65,6 +66,7 @@ pub fn regulator(p: &Params) -> String {
         loop       = sensed
         force vout = 0.9 V
         break_at   = pass.gate
+        clamp_side = driving
         require phase_margin >= 45 deg
     }}
 ",
@@ -146,10 +148,11 @@ pub fn twin(p: &Params) -> Value {
         json!({ "name": "sensed", "scheme": "replica", "ratio": 2000,
                 "reference": { "nominal": p.reference_ua, "unit": "uA", "tolerance": "fab.trimmed" },
                 "mismatch": { "plus_minus": 5, "unit": "%" },
+                "drain_error": { "plus_minus": 4, "unit": "%" },
                 "threshold": "ratio * reference",
                 "clamp_drive": { "min": 80, "max": 150, "unit": "uA" },
                 "analysis": { "name": "limit_loop", "loop": "sensed", "force": { "vout": { "value": 0.9, "unit": "V" } },
-                              "break_at": "pass.gate", "require": { "phase_margin": { "at_least": 45, "unit": "deg" } } } })
+                              "break_at": "pass.gate", "clamp_side": "driving", "require": { "phase_margin": { "at_least": 45, "unit": "deg" } } } })
     } else {
         json!({ "name": "fixed", "scheme": "undervoltage_fixed",
                 "fixed_current": { "min": p.load_ma * 1.4, "max": p.load_ma * 1.9, "unit": "mA" },

@@ -4,7 +4,10 @@
 use crate::model::{FieldValue, Model, NodeId, Reference, Symbol};
 use crate::schema::{self, BlockKind, FieldType};
 use crate::suggest::did_you_mean;
-use crate::value::{Corner, SourceId, ToleranceSource, Value, ValueError};
+use crate::value::{Corner, SourceId, Spread, ToleranceSource, Value, ValueError};
+
+mod hints;
+mod tolerance;
 use crate::{Diagnostic, FileId, Workspace};
 use guardband_syntax::{BinaryOp, Expr, ExprKind, Ident, Span};
 use guardband_units::{ParsedUnit, QuantityKind, TempSense, UnitError, parse_unit};
@@ -214,12 +217,39 @@ impl<'a> Evaluator<'a> {
         let file = self.file_of(node);
         match ty {
             FieldType::Quantity(kind) => {
-                let v = self.quantity(node, expr, key)?;
+                let mut v = self.quantity(node, expr, key)?;
+                v.tighten();
                 self.fit(file, expr, v, &[kind]).map(FieldValue::Quantity)
             }
             FieldType::AnyOf(kinds) => {
-                let v = self.quantity(node, expr, key)?;
+                let mut v = self.quantity(node, expr, key)?;
+                v.tighten();
                 self.fit(file, expr, v, kinds).map(FieldValue::Quantity)
+            }
+            FieldType::Spread => {
+                let mut v = self.quantity(node, expr, key)?;
+                v.tighten();
+                let v = self.fit(file, expr, v, &[QuantityKind::NONE])?;
+                if v.is_exact() || v.lo > 0.0 || v.hi < 0.0 {
+                    let written = self.text(file, &expr.span);
+                    self.push(
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            format!(
+                                "`{key}` is a spread around zero, but `{written}` is a fixed value"
+                            ),
+                        )
+                        .primary("not a spread")
+                        .help(format!(
+                            "write it as a tolerance: `{key} = ± {}`",
+                            written.trim_start_matches(['+', '-', ' '])
+                        )),
+                    );
+                    return None;
+                }
+                Some(FieldValue::Quantity(v))
             }
             FieldType::Bool => match expr.kind {
                 ExprKind::Bool(b) => Some(FieldValue::Bool(b)),
@@ -376,6 +406,7 @@ impl<'a> Evaluator<'a> {
             format!("expected {expected}, found {}", v.kind.describe()),
         )
         .primary(format!("this is {}", v.kind.describe()));
+        let coulomb = kinds[0].is_temperature() && v.kind.dim == guardband_units::Dimension::CHARGE;
         d = if kinds[0].is_temperature() && v.kind.is_temperature() {
             if kinds[0].temp == TempSense::Difference {
                 d.help(
@@ -388,18 +419,72 @@ impl<'a> Evaluator<'a> {
             d.help(unit_help(kinds[0]))
         };
         self.push(d);
+        if coulomb {
+            self.coulomb_hint(expr);
+        }
         None
     }
 
-    fn new_source(&mut self, node: NodeId, key: &str, file: FileId, span: Span) -> SourceId {
+    fn new_source(
+        &mut self,
+        node: NodeId,
+        key: &str,
+        file: FileId,
+        span: Span,
+        spread: Spread,
+    ) -> SourceId {
         let id = SourceId(self.model.sources.len() as u32);
         self.model.sources.push(ToleranceSource {
             node,
             key: key.into(),
             file,
             span,
+            spread,
+            local: false,
+            copy_of: None,
         });
         id
+    }
+
+    /// A referenced value with each `local(...)` part replaced by a fresh
+    /// copy owned by the referencing field, so that every use of a spread
+    /// gets its own independent local part.
+    fn with_own_local_parts(
+        &mut self,
+        node: NodeId,
+        key: &str,
+        file: FileId,
+        span: &Span,
+        v: Value,
+    ) -> Value {
+        let mut locals: Vec<SourceId> = v
+            .terms
+            .iter()
+            .map(|t| t.source)
+            .chain(
+                v.form
+                    .as_ref()
+                    .and_then(|f| f.sources())
+                    .into_iter()
+                    .flat_map(|(s, _)| s),
+            )
+            .filter(|s| self.model.source(*s).local)
+            .collect();
+        if locals.is_empty() {
+            return v;
+        }
+        locals.sort();
+        locals.dedup();
+        let copies: Vec<(SourceId, SourceId)> = locals
+            .into_iter()
+            .map(|original| {
+                let spread = self.model.source(original).spread;
+                let copy = self.new_source(node, key, file, span.clone(), spread);
+                self.model.sources[copy.0 as usize].copy_of = Some(original);
+                (original, copy)
+            })
+            .collect();
+        v.renamed(&|s| copies.iter().find(|(o, _)| *o == s).map(|(_, c)| *c))
     }
 
     fn value_error(
@@ -493,8 +578,17 @@ impl<'a> Evaluator<'a> {
                     BinaryOp::Mul => va.mul(&vb),
                     BinaryOp::Div => va.div(&vb),
                 };
-                r.map_err(|e| self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)]))
-                    .ok()
+                match r {
+                    Ok(v) => Some(v),
+                    Err(e) => {
+                        let mismatch = matches!(e, ValueError::Mismatch { .. });
+                        self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)]);
+                        if mismatch && *op == BinaryOp::Add {
+                            self.plus_minus_hint(file, a, b);
+                        }
+                        None
+                    }
+                }
             }
             ExprKind::Range(a, b) => {
                 let lo = self.quantity(node, a, key)?;
@@ -505,6 +599,13 @@ impl<'a> Evaluator<'a> {
                         right: hi.kind,
                     };
                     self.value_error(file, expr.span.clone(), err, &[(a, &lo), (b, &hi)]);
+                    self.unit_on_one_end(file, a, b);
+                    let charge = guardband_units::Dimension::CHARGE;
+                    if lo.kind.dim == charge && hi.kind.is_temperature() {
+                        self.coulomb_hint(a);
+                    } else if hi.kind.dim == charge && lo.kind.is_temperature() {
+                        self.coulomb_hint(b);
+                    }
                     return None;
                 }
                 if lo.nom > hi.nom {
@@ -525,7 +626,7 @@ impl<'a> Evaluator<'a> {
                 } else {
                     lo.kind
                 };
-                let id = self.new_source(node, key, file, expr.span.clone());
+                let id = self.new_source(node, key, file, expr.span.clone(), Spread::Range);
                 let mut v = Value::range(kind, lo.lo, hi.hi, id);
                 v.unit = lo.unit.clone().or(hi.unit.clone());
                 Some(v)
@@ -535,71 +636,15 @@ impl<'a> Evaluator<'a> {
                 plus,
                 minus,
                 symmetric,
-            } => {
-                let up_v = self.quantity(node, plus, key)?;
-                let down_v = if *symmetric {
-                    up_v.clone()
-                } else {
-                    self.quantity(node, minus, key)?
-                };
-                let mag = |v: &Value| v.nom.abs().max(v.lo.abs()).max(v.hi.abs());
-                let (up, down) = (mag(&up_v), mag(&down_v));
-                if !up_v.kind.fits(down_v.kind) {
-                    let err = ValueError::Mismatch {
-                        left: up_v.kind,
-                        right: down_v.kind,
-                    };
-                    self.value_error(
-                        file,
-                        expr.span.clone(),
-                        err,
-                        &[(plus, &up_v), (minus, &down_v)],
-                    );
-                    return None;
-                }
-                let tol_span = match base {
-                    Some(b) => b.span.end..expr.span.end,
-                    None => expr.span.clone(),
-                };
-                match base {
-                    None => {
-                        if up_v.kind.is_temperature() && up_v.kind.temp == TempSense::Absolute {
-                            let err = ValueError::AbsoluteTemperature(
-                                "a tolerance cannot be an absolute temperature; use K",
-                            );
-                            self.value_error(file, expr.span.clone(), err, &[(plus, &up_v)]);
-                            return None;
-                        }
-                        let id = self.new_source(node, key, file, tol_span);
-                        let kind = QuantityKind {
-                            temp: TempSense::Difference,
-                            ..up_v.kind
-                        };
-                        Some(Value {
-                            kind,
-                            nom: 0.0,
-                            lo: -down,
-                            hi: up,
-                            terms: vec![crate::value::Term {
-                                source: id,
-                                low: -down,
-                                high: up,
-                            }],
-                            unit: up_v.unit.clone(),
-                        })
-                    }
-                    Some(b) => {
-                        let base_v = self.quantity(node, b, key)?;
-                        let id = self.new_source(node, key, file, tol_span.clone());
-                        base_v
-                            .with_tolerance(up_v.kind, up, down, id)
-                            .map_err(|e| {
-                                self.value_error(file, tol_span, e, &[(b, &base_v), (plus, &up_v)])
-                            })
-                            .ok()
-                    }
-                }
-            }
+                sigma,
+            } => self.tolerance(
+                node,
+                expr,
+                base.as_deref(),
+                (plus, minus, *symmetric),
+                sigma.as_deref(),
+                key,
+            ),
             ExprKind::Call(name, args) => self.call(node, expr, name, args, key),
             ExprKind::Path(path) => match self.resolve(node, path, false)? {
                 Target::Field(n, i, corner) => {
@@ -607,7 +652,7 @@ impl<'a> Evaluator<'a> {
                     match value {
                         FieldValue::Quantity(v) => Some(match corner {
                             Some(c) => v.corner(c),
-                            None => v,
+                            None => self.with_own_local_parts(node, key, file, &expr.span, v),
                         }),
                         _ => {
                             self.push(
@@ -674,6 +719,19 @@ impl<'a> Evaluator<'a> {
             );
             return None;
         }
+        if value == 0.0 && self.written_nonzero(file, expr, unit) {
+            self.push(
+                Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    expr.span.clone(),
+                    "this number is too small to represent; it would read as 0",
+                )
+                .primary("below about 1e-308")
+                .help("write it with a larger unit prefix, or as 0 if zero is meant"),
+            );
+            return None;
+        }
         let Some(unit) = unit else {
             return Some(Value::exact(QuantityKind::NONE, value));
         };
@@ -688,6 +746,18 @@ impl<'a> Evaluator<'a> {
         match parsed {
             Ok(u) => {
                 let si = u.to_si(value);
+                if si == 0.0 && value != 0.0 && u.offset == 0.0 {
+                    self.push(
+                        Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            "this value is too small to represent in SI units; it would read as 0",
+                        )
+                        .primary("below about 1e-308 in SI units"),
+                    );
+                    return None;
+                }
                 if !si.is_finite() {
                     self.push(
                         Diagnostic::error(
@@ -721,18 +791,38 @@ impl<'a> Evaluator<'a> {
                     Diagnostic::error("unknown-unit", file, unit.span.clone(), err.to_string())
                         .primary("not a unit");
                 if let UnitError::Unknown { suggestions, .. } = &err {
-                    if let Some(s) = suggestions.first() {
-                        d = d.help(format!(
-                            "did you mean `{s}`? The language reference lists every unit"
-                        ));
-                    } else {
-                        d = d.help("the language reference lists every unit");
-                    }
+                    d = d.help(match suggestions.as_slice() {
+                        [] => "no known unit is close; the language reference lists every unit"
+                            .to_string(),
+                        [one] => format!("did you mean `{one}`?"),
+                        [first @ .., last] => format!(
+                            "did you mean {} or `{last}`?",
+                            first
+                                .iter()
+                                .map(|s| format!("`{s}`"))
+                                .collect::<Vec<_>>()
+                                .join(", ")
+                        ),
+                    });
                 }
                 self.push(d);
                 None
             }
         }
+    }
+
+    /// Whether a literal that parsed as 0 was written with a non-zero
+    /// mantissa (`1e-400`): the number underflowed.
+    fn written_nonzero(&self, file: FileId, expr: &Expr, unit: Option<&Ident>) -> bool {
+        let end = unit.map(|u| u.span.start).unwrap_or(expr.span.end);
+        let text = self
+            .ws
+            .file(file)
+            .text
+            .get(expr.span.start..end)
+            .unwrap_or("");
+        let mantissa = text.split(['e', 'E']).next().unwrap_or("");
+        mantissa.bytes().any(|b| (b'1'..=b'9').contains(&b))
     }
 
     fn call(
@@ -746,7 +836,7 @@ impl<'a> Evaluator<'a> {
         let file = self.file_of(node);
         let arity = match name.text.as_str() {
             "min" | "max" => 2..=16,
-            "abs" | "sqrt" => 1..=1,
+            "abs" | "sqrt" | "local" => 1..=1,
             _ => {
                 let mut d = Diagnostic::error(
                     "unknown-name",
@@ -755,8 +845,8 @@ impl<'a> Evaluator<'a> {
                     format!("unknown function `{}`", name.text),
                 )
                 .primary("not a function")
-                .help("functions: min, max, abs, sqrt");
-                if let Some(s) = did_you_mean(&name.text, ["min", "max", "abs", "sqrt"]) {
+                .help("functions: min, max, abs, sqrt, local");
+                if let Some(s) = did_you_mean(&name.text, ["min", "max", "abs", "sqrt", "local"]) {
                     d = d.help(format!("did you mean `{s}`?"));
                 }
                 self.push(d);
@@ -790,6 +880,19 @@ impl<'a> Evaluator<'a> {
         }
         let mut acc = values[0].clone();
         let result = match name.text.as_str() {
+            "local" => {
+                // Each use of the field holding this part gets its own copy
+                // (mismatch between matched devices): see `with_own_local_parts`.
+                for t in &acc.terms {
+                    self.model.sources[t.source.0 as usize].local = true;
+                }
+                if let Some((sources, _)) = acc.form.as_ref().and_then(|f| f.sources()) {
+                    for s in sources {
+                        self.model.sources[s.0 as usize].local = true;
+                    }
+                }
+                Ok(acc)
+            }
             "abs" => acc.abs(),
             "sqrt" => acc.sqrt(),
             f => {

@@ -7,6 +7,7 @@
 mod build;
 mod diagnostic;
 mod eval;
+pub mod form;
 pub mod limits;
 pub mod model;
 pub mod schema;
@@ -20,7 +21,7 @@ pub use limits::Limits;
 pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
-pub use value::{Corner, SourceId, Term, ToleranceSource, Value, ValueError};
+pub use value::{Bounds, Corner, SourceId, Spread, Term, ToleranceSource, Value, ValueError};
 pub use workspace::{SourceFile, Workspace, decode, load, load_with, normalize};
 
 use guardband_syntax::SyntaxError;

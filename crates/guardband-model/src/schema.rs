@@ -10,6 +10,7 @@ pub enum BlockKind {
     Regulator,
     Process,
     Metal,
+    BondWire,
     Pin,
     Pass,
     Limit,
@@ -28,6 +29,9 @@ pub enum FieldType {
     Quantity(QuantityKind),
     /// A quantity of any of these kinds.
     AnyOf(&'static [QuantityKind]),
+    /// A plain-number spread around zero, such as `± 8 %` (mismatch, drain
+    /// error, process spreads): a fixed `10 %` here is a slip for `± 10 %`.
+    Spread,
     /// `true` or `false`.
     Bool,
     /// One word out of a fixed list.
@@ -103,6 +107,10 @@ const DESCRIPTION: FieldSpec = f("description", FieldType::Text, "free text show
 
 /// The choices of `limit.scheme`.
 pub const SCHEMES: &[&str] = &["replica", "undervoltage_fixed"];
+/// The choices of a bond wire's `material`.
+pub const WIRE_MATERIALS: &[&str] = &["copper", "aluminium", "gold"];
+/// The choices of `pin.role`.
+pub const PIN_ROLES: &[&str] = &["output", "supply", "ground", "other"];
 /// The choices of `fault.event`.
 pub const EVENTS: &[&str] = &["short_to_ground", "short_to_supply", "overload", "startup"];
 
@@ -165,12 +173,12 @@ pub const BLOCKS: &[BlockSpec] = &[
         keyword: "process",
         named: true,
         doc: "process data shared by many blocks",
-        children: &[BlockKind::Metal],
+        children: &[BlockKind::Metal, BlockKind::BondWire],
         fields: &[
             named(
                 "spread",
                 "*",
-                RATIO,
+                FieldType::Spread,
                 false,
                 "a typical spread, e.g. `spread resistor = ± 18 %`",
             ),
@@ -225,6 +233,32 @@ pub const BLOCKS: &[BlockSpec] = &[
                 q(Dimension::PER_TEMPERATURE),
                 "resistivity temperature coefficient",
             ),
+            f(
+                "resistivity_temperature",
+                ABS_TEMP,
+                "temperature at which `resistivity` is stated (default 20 °C)",
+            ),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::BondWire,
+        keyword: "bond_wire",
+        named: true,
+        doc: "a bond wire type: material, diameter and the derating of its fusing current",
+        children: &[],
+        fields: &[
+            f(
+                "material",
+                FieldType::Choice(WIRE_MATERIALS),
+                "wire material",
+            ),
+            f("diameter", LENGTH, "wire diameter"),
+            f(
+                "derating",
+                RATIO,
+                "fraction of the Preece fusing current the wire is rated for",
+            ),
             DESCRIPTION,
         ],
     },
@@ -244,6 +278,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "capacitance",
                 q(Dimension::CAPACITANCE),
                 "capacitance attached to the pin",
+            ),
+            f(
+                "role",
+                FieldType::Choice(PIN_ROLES),
+                "what the pin is: `output` (its capacitance is charged at startup), `supply`, `ground` or `other`",
             ),
             DESCRIPTION,
         ],
@@ -288,12 +327,12 @@ pub const BLOCKS: &[BlockSpec] = &[
             ),
             f(
                 "mismatch",
-                RATIO,
+                FieldType::Spread,
                 "replica: ratio mismatch, a bare tolerance such as `± 8 %`",
             ),
             f(
                 "drain_error",
-                RATIO,
+                FieldType::Spread,
                 "replica: error from the drain-voltage difference, a bare tolerance",
             ),
             f(
@@ -390,8 +429,8 @@ pub const BLOCKS: &[BlockSpec] = &[
         fields: &[
             f(
                 "carries",
-                FieldType::Ref(&[BlockKind::Pass, BlockKind::Pin]),
-                "what current flows through it",
+                FieldType::Ref(&[BlockKind::Pass, BlockKind::Pin, BlockKind::Limit]),
+                "what current flows through it: the pass device or a pin (the output path), or a replica limit (its branch)",
             ),
             f(
                 "layer",
@@ -404,10 +443,15 @@ pub const BLOCKS: &[BlockSpec] = &[
                 LENGTH,
                 "metal: line length, for its resistance and voltage drop at the worst current",
             ),
+            f(
+                "wire",
+                FieldType::Ref(&[BlockKind::BondWire]),
+                "bond wire: a `bond_wire` type of the process",
+            ),
             f("diameter", LENGTH, "bond wire diameter"),
             f(
                 "material",
-                FieldType::Choice(&["copper", "aluminium", "gold"]),
+                FieldType::Choice(WIRE_MATERIALS),
                 "bond wire material",
             ),
             f(
@@ -435,7 +479,7 @@ pub const BLOCKS: &[BlockSpec] = &[
             f(
                 "derating",
                 RATIO,
-                "fraction of the fusing current allowed for a bond wire",
+                "bond wire: fraction of the Preece fusing current it is rated for",
             ),
             DESCRIPTION,
         ],
@@ -509,6 +553,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 FieldType::Node,
                 "where the loop is broken, e.g. `pass.gate`",
             ),
+            f(
+                "clamp_side",
+                FieldType::Choice(&["driving", "device"]),
+                "which side of the break the clamp connects to: `driving` (right) or `device`",
+            ),
             named(
                 "require",
                 "phase_margin",
@@ -574,6 +623,7 @@ impl FieldType {
     pub fn describe(&self) -> String {
         match self {
             FieldType::Quantity(k) => k.describe(),
+            FieldType::Spread => "a spread around zero (`± 8 %`, `-2 % .. 6 %`)".to_string(),
             FieldType::AnyOf(ks) => ks
                 .iter()
                 .map(|k| k.describe())

@@ -3,17 +3,35 @@
 //!
 //! `lo`/`hi` come from interval arithmetic, so they bound every combination of
 //! the inputs (signs handled; a divisor range that includes zero is an error).
-//! `terms` are first-order deviations per stated tolerance, which lets the
-//! rules combine a window statistically (root-sum-square) and rank contributors
-//! while a tolerance used twice stays correlated with itself.
+//! Where a tolerance enters an expression more than once, interval arithmetic
+//! overestimates; [`Value::tighten`] then evaluates the value's [`Form`] at
+//! every corner of its tolerances, which is exact for values monotonic in each
+//! of them. `terms` are first-order deviations per stated tolerance, which
+//! lets the rules combine a window statistically (root-sum-square) and rank
+//! contributors while a tolerance used twice stays correlated with itself.
 
 use crate::FileId;
+use crate::form::{Corners, Form, corner_bounds};
 use guardband_syntax::Span;
 use guardband_units::{QuantityKind, TempSense};
+use std::sync::Arc;
 
 /// Index of a stated tolerance in [`crate::Model::sources`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub struct SourceId(pub u32);
+
+/// How a stated tolerance is spread between its extremes, for the
+/// statistical window.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Spread {
+    /// `± x`, `+a -b`: a normal distribution whose stated extremes are `k`
+    /// standard deviations from its centre; `None` takes the configured
+    /// `sigma`, `Some(k)` was written as `at k sigma`.
+    Normal(Option<f64>),
+    /// `lo .. hi`: a bound (corner data), not a normal distribution; the
+    /// configuration says how it enters the statistical window.
+    Range,
+}
 
 /// A tolerance or range as the user stated it, with where. Its name and
 /// text are looked up when shown, so that stating one costs no strings.
@@ -26,12 +44,25 @@ pub struct ToleranceSource {
     pub file: FileId,
     /// The tolerance as written, e.g. `± 18 %`.
     pub span: Span,
+    pub spread: Spread,
+    /// Stated inside `local(...)`: each use of the field gets its own copy.
+    pub local: bool,
+    /// For a copy of a local part: the part it was copied from.
+    pub copy_of: Option<SourceId>,
 }
 
 impl ToleranceSource {
-    /// Dotted path of the field it was stated in, e.g. `probe_rail.sensed.reference`.
+    /// Dotted path of the field it was stated in, e.g. `probe_rail.sensed.reference`;
+    /// a copy of a local part says whose part it is.
     pub fn label(&self, model: &crate::Model) -> String {
-        format!("{}.{}", model.node(self.node).path, self.key)
+        let own = format!("{}.{}", model.node(self.node).path, self.key);
+        match self.copy_of {
+            Some(original) => format!(
+                "{own} (its own local part of `{}`)",
+                model.source(original).label(model)
+            ),
+            None => own,
+        }
     }
 
     /// The text as written, e.g. `± 18 %`.
@@ -49,6 +80,40 @@ pub struct Term {
     pub high: f64,
 }
 
+/// How a value's `lo` and `hi` were found, for hovers.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Bounds {
+    /// Interval arithmetic; exact when each tolerance enters once.
+    #[default]
+    Interval,
+    /// Evaluated at every corner of this many tolerances (one entered more
+    /// than once, so interval arithmetic would overestimate).
+    Corners(u8),
+    /// Interval arithmetic kept because corner evaluation did not apply.
+    Fallback(Corners),
+}
+
+impl Bounds {
+    /// One sentence for hovers.
+    pub fn describe(self) -> String {
+        match self {
+            Bounds::Interval => "interval arithmetic (exact: each tolerance enters once)".into(),
+            Bounds::Corners(n) => format!(
+                "evaluated at all {} corners of its {n} tolerances (one enters more than once)",
+                1u32 << n
+            ),
+            Bounds::Fallback(Corners::TooMany) => {
+                "interval arithmetic (a safe overestimate: too many tolerances for corner evaluation)"
+                    .into()
+            }
+            Bounds::Fallback(_) => {
+                "interval arithmetic (a safe overestimate: the value is not monotonic in a tolerance)"
+                    .into()
+            }
+        }
+    }
+}
+
 /// A quantity evaluated to nominal and bounds, in SI units.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Value {
@@ -59,6 +124,10 @@ pub struct Value {
     pub terms: Vec<Term>,
     /// The unit the user wrote, used to show results back in it.
     pub unit: Option<compact_str::CompactString>,
+    /// How the value depends on its tolerances; `None` for an exact value.
+    pub form: Option<Arc<Form>>,
+    /// How `lo` and `hi` were found.
+    pub bounds: Bounds,
 }
 
 /// Why an operation on values is not defined.
@@ -82,6 +151,8 @@ pub enum ValueError {
     },
     /// A result that is not a finite number.
     NotFinite,
+    /// A product or quotient whose unit powers leave the representable range.
+    DimensionOverflow,
 }
 
 impl std::fmt::Display for ValueError {
@@ -113,6 +184,9 @@ impl std::fmt::Display for ValueError {
                 tolerance.describe()
             ),
             ValueError::NotFinite => f.write_str("the result is not a finite number"),
+            ValueError::DimensionOverflow => f.write_str(
+                "the unit of this product has a power beyond ±127 of a base unit",
+            ),
         }
     }
 }
@@ -120,14 +194,12 @@ impl std::fmt::Display for ValueError {
 type Result<T> = std::result::Result<T, ValueError>;
 
 fn merge_terms(a: &[Term], ka: f64, b: &[Term], kb: f64) -> Vec<Term> {
-    let mut out: Vec<Term> = a
-        .iter()
-        .map(|t| Term {
-            source: t.source,
-            low: t.low * ka,
-            high: t.high * ka,
-        })
-        .collect();
+    let mut out: Vec<Term> = Vec::with_capacity(a.len() + b.len());
+    out.extend(a.iter().map(|t| Term {
+        source: t.source,
+        low: t.low * ka,
+        high: t.high * ka,
+    }));
     for t in b {
         match out.iter_mut().find(|o| o.source == t.source) {
             Some(o) => {
@@ -148,6 +220,14 @@ fn scale_terms(a: &[Term], k: f64) -> Vec<Term> {
     merge_terms(a, k, &[], 0.0)
 }
 
+/// The form of a combination of two values; `None` when both are exact.
+fn combine(a: &Value, b: &Value, make: fn(Arc<Form>, Arc<Form>) -> Form) -> Option<Arc<Form>> {
+    if a.form.is_none() && b.form.is_none() {
+        return None;
+    }
+    Some(Arc::new(make(a.form_or_const(), b.form_or_const())))
+}
+
 impl Value {
     /// An exact value (no tolerance).
     pub fn exact(kind: QuantityKind, si: f64) -> Value {
@@ -158,6 +238,8 @@ impl Value {
             hi: si,
             terms: Vec::new(),
             unit: None,
+            form: None,
+            bounds: Bounds::Interval,
         }
     }
 
@@ -175,12 +257,82 @@ impl Value {
                 high: hi - nom,
             }],
             unit: None,
+            form: Some(Arc::new(Form::Param { source, lo, hi })),
+            bounds: Bounds::Interval,
+        }
+    }
+
+    /// A bare tolerance `± x` (or a spread): zero nominal, `-down .. up`.
+    pub fn spread(kind: QuantityKind, down: f64, up: f64, source: SourceId) -> Value {
+        Value {
+            kind,
+            nom: 0.0,
+            lo: -down,
+            hi: up,
+            terms: vec![Term {
+                source,
+                low: -down,
+                high: up,
+            }],
+            unit: None,
+            form: Some(Arc::new(Form::Param {
+                source,
+                lo: -down,
+                hi: up,
+            })),
+            bounds: Bounds::Interval,
         }
     }
 
     /// True when no tolerance or range was stated anywhere upstream.
     pub fn is_exact(&self) -> bool {
         self.lo == self.hi && self.terms.is_empty()
+    }
+
+    /// The form, or the constant nominal for an exact value.
+    pub fn form_or_const(&self) -> Arc<Form> {
+        match &self.form {
+            Some(f) => Arc::clone(f),
+            None => Arc::new(Form::Const(self.nom)),
+        }
+    }
+
+    /// The value at one point of its tolerances (`u` in `-1 ..= 1` at the
+    /// stated extremes of each).
+    pub fn at(&self, u: &dyn Fn(SourceId) -> f64) -> f64 {
+        match &self.form {
+            Some(f) => f.eval(u),
+            None => self.nom,
+        }
+    }
+
+    /// Narrows `lo`/`hi` to the extremes over the corners of the value's
+    /// tolerances when one of them enters more than once (interval
+    /// arithmetic then overestimates) and the value is monotonic in each;
+    /// otherwise the interval bounds stay. Never widens the bounds.
+    pub fn tighten(&mut self) {
+        let Some(form) = &self.form else { return };
+        let Some((sources, repeated)) = form.sources() else {
+            self.bounds = Bounds::Fallback(Corners::TooMany);
+            return;
+        };
+        if !repeated {
+            return;
+        }
+        match corner_bounds(form, &sources) {
+            Ok((lo, hi)) => {
+                // Corners lie inside the sound interval; clamping only removes rounding.
+                self.lo = lo.max(self.lo);
+                self.hi = hi.min(self.hi);
+                if self.lo > self.hi {
+                    let mid = (lo + hi) / 2.0;
+                    self.lo = mid;
+                    self.hi = mid;
+                }
+                self.bounds = Bounds::Corners(sources.len() as u8);
+            }
+            Err(why) => self.bounds = Bounds::Fallback(why),
+        }
     }
 
     fn check(self) -> Result<Value> {
@@ -236,6 +388,8 @@ impl Value {
             hi: self.hi + other.hi,
             terms: merge_terms(&self.terms, 1.0, &other.terms, 1.0),
             unit: self.unit.clone().or_else(|| other.unit.clone()),
+            form: combine(self, other, Form::Add),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -255,6 +409,8 @@ impl Value {
             hi: self.hi - other.lo,
             terms: merge_terms(&self.terms, 1.0, &other.terms, -1.0),
             unit,
+            form: combine(self, other, Form::Sub),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -271,16 +427,22 @@ impl Value {
             hi: -self.lo,
             terms: scale_terms(&self.terms, -1.0),
             unit: self.unit.clone(),
+            form: self
+                .form
+                .as_ref()
+                .map(|f| Arc::new(Form::Neg(Arc::clone(f)))),
+            bounds: Bounds::Interval,
         }
         .check()
     }
 
-    fn product_kind(a: QuantityKind, b: QuantityKind, divide: bool) -> QuantityKind {
+    fn product_kind(a: QuantityKind, b: QuantityKind, divide: bool) -> Result<QuantityKind> {
         let dim = if divide {
-            a.dim.per(b.dim)
+            a.dim.checked_per(b.dim)
         } else {
-            a.dim.times(b.dim)
-        };
+            a.dim.checked_times(b.dim)
+        }
+        .ok_or(ValueError::DimensionOverflow)?;
         let temp = if dim.is_none() || dim != guardband_units::Dimension::TEMPERATURE {
             TempSense::Difference
         } else if a.temp == TempSense::Either || b.temp == TempSense::Either {
@@ -288,7 +450,7 @@ impl Value {
         } else {
             TempSense::Difference
         };
-        QuantityKind { dim, temp }
+        Ok(QuantityKind { dim, temp })
     }
 
     fn kept_unit(&self, other: &Value) -> Option<compact_str::CompactString> {
@@ -312,12 +474,14 @@ impl Value {
             self.hi * other.hi,
         ];
         Value {
-            kind: Self::product_kind(self.kind, other.kind, false),
+            kind: Self::product_kind(self.kind, other.kind, false)?,
             nom: self.nom * other.nom,
             lo: corners.iter().copied().fold(f64::INFINITY, f64::min),
             hi: corners.iter().copied().fold(f64::NEG_INFINITY, f64::max),
             terms: merge_terms(&self.terms, other.nom, &other.terms, self.nom),
             unit: self.kept_unit(other),
+            form: combine(self, other, Form::Mul),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -329,22 +493,35 @@ impl Value {
         if other.lo <= 0.0 && other.hi >= 0.0 {
             return Err(ValueError::DivisorIncludesZero);
         }
-        let inverse = Value {
-            kind: QuantityKind::of(other.kind.dim.powi(-1)),
-            nom: 1.0 / other.nom,
-            lo: 1.0 / other.hi,
-            hi: 1.0 / other.lo,
-            terms: scale_terms(&other.terms, -1.0 / (other.nom * other.nom)),
-            unit: None,
-        };
-        let mut out = self.mul(&inverse)?;
-        out.kind = Self::product_kind(self.kind, other.kind, true);
-        out.unit = if other.kind.dim.is_none() {
-            self.unit.clone()
-        } else {
-            None
-        };
-        out.check()
+        let kind = Self::product_kind(self.kind, other.kind, true)?;
+        let inv = [1.0 / other.hi, 1.0 / other.lo];
+        let corners = [
+            self.lo * inv[0],
+            self.lo * inv[1],
+            self.hi * inv[0],
+            self.hi * inv[1],
+        ];
+        let inv_nom = 1.0 / other.nom;
+        Value {
+            kind,
+            nom: self.nom * inv_nom,
+            lo: corners.iter().copied().fold(f64::INFINITY, f64::min),
+            hi: corners.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            terms: merge_terms(
+                &self.terms,
+                inv_nom,
+                &other.terms,
+                -self.nom * inv_nom * inv_nom,
+            ),
+            unit: if other.kind.dim.is_none() {
+                self.unit.clone()
+            } else {
+                None
+            },
+            form: combine(self, other, Form::Div),
+            bounds: Bounds::Interval,
+        }
+        .check()
     }
 
     /// The smaller of two values, bound by bound.
@@ -358,6 +535,8 @@ impl Value {
             hi: self.hi.min(other.hi),
             terms: pick.terms.clone(),
             unit: self.unit.clone().or_else(|| other.unit.clone()),
+            form: combine(self, other, Form::Min),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -373,6 +552,8 @@ impl Value {
             hi: self.hi.max(other.hi),
             terms: pick.terms.clone(),
             unit: self.unit.clone().or_else(|| other.unit.clone()),
+            form: combine(self, other, Form::Max),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -412,6 +593,11 @@ impl Value {
             hi,
             terms: scale_terms(&self.terms, sign),
             unit: self.unit.clone(),
+            form: self
+                .form
+                .as_ref()
+                .map(|f| Arc::new(Form::Abs(Arc::clone(f)))),
+            bounds: Bounds::Interval,
         }
         .check()
     }
@@ -436,12 +622,18 @@ impl Value {
             hi: self.hi.sqrt(),
             terms: scale_terms(&self.terms, slope),
             unit: None,
+            form: self
+                .form
+                .as_ref()
+                .map(|f| Arc::new(Form::Sqrt(Arc::clone(f)))),
+            bounds: Bounds::Interval,
         }
         .check()
     }
 
-    /// Applies a tolerance: relative (`tol` dimensionless, a fraction) or
-    /// absolute (`tol` of the value's kind). `up` and `down` are magnitudes.
+    /// Applies a stated tolerance: relative (`tol` dimensionless, a
+    /// fraction) or absolute (`tol` of the value's kind). `up` and `down`
+    /// are magnitudes; the tolerance becomes the new source `source`.
     pub fn with_tolerance(
         &self,
         tol_kind: QuantityKind,
@@ -449,66 +641,52 @@ impl Value {
         down: f64,
         source: SourceId,
     ) -> Result<Value> {
-        let (low_dev, high_dev) = if tol_kind.dim.is_none() {
+        let spread = Value::spread(QuantityKind::NONE, down, up, source);
+        if tol_kind.dim.is_none() {
             if self.kind.is_temperature() && self.kind.temp == TempSense::Absolute {
                 return Err(ValueError::BadTolerance {
                     base: self.kind,
                     tolerance: tol_kind,
                 });
             }
-            let scale = Value {
-                kind: QuantityKind::NONE,
-                nom: 1.0,
-                lo: 1.0 - down,
-                hi: 1.0 + up,
-                terms: Vec::new(),
-                unit: None,
-            };
-            let scaled = self.mul(&scale)?;
-            let mut out = Value {
-                kind: self.kind,
-                unit: self.unit.clone(),
-                ..scaled
-            };
-            out.terms = merge_terms(
-                &self.terms,
-                1.0,
-                &[Term {
-                    source,
-                    low: -down * self.nom,
-                    high: up * self.nom,
-                }],
-                1.0,
-            );
-            return out.check();
+            self.scaled_by(&spread)
         } else if tol_kind.dim == self.kind.dim
             && (!tol_kind.is_temperature() || tol_kind.temp != TempSense::Absolute)
         {
-            (-down, up)
+            self.shifted_by(&Value {
+                kind: tol_kind,
+                ..spread
+            })
         } else {
-            return Err(ValueError::BadTolerance {
+            Err(ValueError::BadTolerance {
                 base: self.kind,
                 tolerance: tol_kind,
-            });
-        };
-        Value {
-            kind: self.kind,
-            nom: self.nom,
-            lo: self.lo + low_dev,
-            hi: self.hi + high_dev,
-            terms: merge_terms(
-                &self.terms,
-                1.0,
-                &[Term {
-                    source,
-                    low: low_dev,
-                    high: high_dev,
-                }],
-                1.0,
-            ),
-            unit: self.unit.clone(),
+            })
         }
-        .check()
+    }
+
+    /// `self · (1 + spread)`: a relative spread that keeps its own sources,
+    /// so that two values toleranced by the same spread stay correlated.
+    pub fn scaled_by(&self, spread: &Value) -> Result<Value> {
+        if self.kind.is_temperature() && self.kind.temp == TempSense::Absolute {
+            return Err(ValueError::BadTolerance {
+                base: self.kind,
+                tolerance: spread.kind,
+            });
+        }
+        let one_plus = Value::exact(QuantityKind::NONE, 1.0).add(spread)?;
+        let mut out = self.mul(&one_plus)?;
+        out.kind = self.kind;
+        out.unit = self.unit.clone();
+        out.check()
+    }
+
+    /// `self + spread`: a spread in the value's own unit, keeping its sources.
+    pub fn shifted_by(&self, spread: &Value) -> Result<Value> {
+        let mut out = self.add(spread)?;
+        out.kind = self.kind;
+        out.unit = self.unit.clone();
+        out.check()
     }
 
     /// A fixed corner of this value (`.min`, `.nom`, `.max`), with no tolerance left.
@@ -521,6 +699,22 @@ impl Value {
         Value {
             unit: self.unit.clone(),
             ..Value::exact(self.kind, si)
+        }
+    }
+
+    /// The same value with each tolerance renamed by `map` (others kept).
+    pub fn renamed(&self, map: &dyn Fn(SourceId) -> Option<SourceId>) -> Value {
+        Value {
+            terms: self
+                .terms
+                .iter()
+                .map(|t| Term {
+                    source: map(t.source).unwrap_or(t.source),
+                    ..*t
+                })
+                .collect(),
+            form: self.form.as_ref().map(|f| f.renamed(map)),
+            ..self.clone()
         }
     }
 }
@@ -624,6 +818,48 @@ mod tests {
         assert!(Value::exact(QuantityKind::CURRENT, 1.0).sqrt().is_err());
     }
 
+    // The example of a repeated tolerance: ratio · reference / reference ·
+    // reference with reference 200 uA ± 18 % (164 .. 236 uA) and ratio 1000
+    // is physically 164 .. 236 mA, where interval arithmetic gives
+    // 164·164/236 .. 236·236/164 mA = 114 .. 340 mA (hand calculation).
+    #[test]
+    fn a_repeated_tolerance_is_bounded_exactly() {
+        let reference = Value::exact(QuantityKind::CURRENT, 200e-6)
+            .with_tolerance(QuantityKind::NONE, 0.18, 0.18, SourceId(0))
+            .unwrap();
+        let ratio = Value::exact(QuantityKind::NONE, 1000.0);
+        let mut v = ratio
+            .mul(&reference)
+            .and_then(|x| x.div(&reference))
+            .and_then(|x| x.mul(&reference))
+            .unwrap();
+        assert!((v.lo - 0.164 * 0.164 / 0.236).abs() < 1e-9);
+        assert!((v.hi - 0.236 * 0.236 / 0.164).abs() < 1e-9);
+        v.tighten();
+        assert_eq!(v.bounds, Bounds::Corners(1));
+        assert!((v.lo - 0.164).abs() < 1e-12 && (v.hi - 0.236).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_shared_spread_stays_correlated() {
+        // Two values toleranced by one spread: their ratio does not spread.
+        let spread = Value::spread(QuantityKind::NONE, 0.1, 0.1, SourceId(0));
+        let a = Value::exact(QuantityKind::CURRENT, 1.0)
+            .scaled_by(&spread)
+            .unwrap();
+        let b = Value::exact(QuantityKind::CURRENT, 2.0)
+            .scaled_by(&spread)
+            .unwrap();
+        let mut r = a.div(&b).unwrap();
+        r.tighten();
+        assert!((r.lo - 0.5).abs() < 1e-12 && (r.hi - 0.5).abs() < 1e-12);
+        assert!(
+            r.terms
+                .iter()
+                .all(|t| t.low.abs() < 1e-15 && t.high.abs() < 1e-15)
+        );
+    }
+
     #[test]
     fn adding_mismatched_kinds_fails() {
         let v = Value::exact(QuantityKind::VOLTAGE, 1.0);
@@ -713,6 +949,41 @@ mod properties {
                 let v = (x + y) * z - x;
                 let slack = 1e-9 * (1.0 + v.abs());
                 prop_assert!(r.lo - slack <= v && v <= r.hi + slack);
+            }
+        }
+
+        #[test]
+        fn corner_bounds_are_never_wider_and_never_exclude_a_point(
+            ops in proptest::collection::vec((0usize..3, 0usize..4), 1..6),
+            ranges in proptest::collection::vec((0.5f64..5.0, 0.0f64..0.8), 3),
+            points in proptest::collection::vec(proptest::collection::vec(-1.0f64..=1.0, 3), 24),
+        ) {
+            // Positive ranges, so no division by zero; sources repeat freely.
+            let leaf = |i: usize| {
+                let (lo, w) = ranges[i];
+                Value::range(QuantityKind::NONE, lo, lo * (1.0 + w), SourceId(i as u32))
+            };
+            let mut v = leaf(0);
+            for (source, op) in &ops {
+                let x = leaf(*source);
+                v = match op {
+                    0 => v.add(&x),
+                    1 => v.mul(&x),
+                    2 => v.div(&x),
+                    _ => v.sub(&x).and_then(|d| d.add(&x)).and_then(|d| d.add(&x)),
+                }
+                .expect("defined on positive ranges");
+            }
+            let interval = (v.lo, v.hi);
+            let mut t = v.clone();
+            t.tighten();
+            prop_assert!(t.lo >= interval.0 - 1e-12 * interval.0.abs().max(1.0));
+            prop_assert!(t.hi <= interval.1 + 1e-12 * interval.1.abs().max(1.0));
+            for u in &points {
+                let y = v.at(&|s| u[s.0 as usize]);
+                let slack = 1e-9 * (1.0 + y.abs());
+                prop_assert!(t.lo - slack <= y && y <= t.hi + slack,
+                    "{y} outside {}..{} ({:?})", t.lo, t.hi, t.bounds);
             }
         }
 

@@ -92,22 +92,26 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     let _ = writeln!(md, "> {CAUTION}\n");
     let mut charts = Vec::new();
     for (reg, derived) in model.regulators().zip(&checked.derived) {
-        let f = figures::figures(model, reg, derived, checked.config.sigma);
+        let f = figures::figures(model, reg, derived, &checked.config);
         let file = &ws.file(reg.file).display;
         let _ = writeln!(md, "## Regulator `{}` ({file})\n", reg.key());
         let _ = writeln!(
             md,
-            "![Currents of {}: rated load and margin, limit windows, unlimited surge, conductor ratings]({})\n",
+            "![Currents of {}: rated load and margin, limit windows, full-gate current, conductor ratings]({})\n",
             reg.key(),
             chart_file(reg.key())
         );
-        let _ = writeln!(md, "### Derived values\n\n| quantity | value |\n|---|---|");
+        let _ = writeln!(
+            md,
+            "### Derived values (bounds over every corner)\n\n| quantity | value | how |\n|---|---|---|"
+        );
         for row in &f.rows {
             let _ = writeln!(
                 md,
-                "| {} | {} |",
+                "| {} | {} | {} |",
                 row.quantity,
-                row.value.replace('|', "\\|")
+                row.value.replace('|', "\\|"),
+                row.basis.replace('|', "\\|")
             );
         }
         let _ = writeln!(md, "\n### Fault coverage\n");

@@ -15,6 +15,8 @@ pub struct Config {
     pub statistical: bool,
     /// How many standard deviations one stated ± stands for.
     pub sigma: f64,
+    /// How ranges (`lo .. hi`) enter the statistical window.
+    pub ranges: crate::derive::RangeMode,
     /// Largest fraction of parts, in ppm, allowed to trip below rated load plus margin.
     pub escape_ppm: f64,
     /// Target lifetime for conductor ratings, in seconds (None: no lifetime derating).
@@ -35,6 +37,7 @@ impl Default for Config {
             margin: 0.2,
             statistical: true,
             sigma: 3.0,
+            ranges: crate::derive::RangeMode::Uniform,
             escape_ppm: 1.0,
             lifetime: None,
             deny_warnings: false,
@@ -64,6 +67,12 @@ pub const KEYS: &[(&str, &str, &str, &str)] = &[
         "a number",
         "how many standard deviations a stated ± stands for",
         "3",
+    ),
+    (
+        "ranges",
+        "\"uniform\" or \"bound\"",
+        "how a range `lo .. hi` enters the statistical window: as a uniform distribution, or as a bound added outside the root-sum-square",
+        "\"uniform\" (GUM rectangular distribution)",
     ),
     (
         "escape_ppm",
@@ -341,6 +350,7 @@ impl Config {
             "margin",
             "statistical",
             "sigma",
+            "ranges",
             "escape_ppm",
             "lifetime",
             "deny",
@@ -380,6 +390,15 @@ impl Config {
                         key,
                         "`sigma` takes a positive number".into(),
                         "write e.g. `sigma = 3`",
+                    )),
+                },
+                "ranges" => match value.as_str() {
+                    Some("uniform") => config.ranges = crate::derive::RangeMode::Uniform,
+                    Some("bound") => config.ranges = crate::derive::RangeMode::Bound,
+                    _ => diags.push(bad(
+                        key,
+                        "`ranges` takes \"uniform\" or \"bound\"".into(),
+                        "write `ranges = \"uniform\"`",
                     )),
                 },
                 "escape_ppm" => match value {

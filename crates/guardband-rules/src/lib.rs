@@ -6,6 +6,7 @@
 //! parse and never print; they push diagnostics.
 
 pub mod batch;
+pub mod compare;
 pub mod config;
 pub mod context;
 pub mod derive;
@@ -125,6 +126,32 @@ pub fn analyse(
     run_rules(ws, model, config, &derived, diagnostics)
 }
 
+/// The spans of the top-level items that hold a syntax error.
+fn guessed_items(ws: &Workspace) -> Vec<(guardband_model::FileId, std::ops::Range<usize>)> {
+    let mut out = Vec::new();
+    for file in &ws.files {
+        if file.parse.errors.is_empty() {
+            continue;
+        }
+        for item in &file.parse.file.items {
+            let span = match item {
+                guardband_syntax::Item::Block(b) => b.span.clone(),
+                guardband_syntax::Item::Error(s) => s.clone(),
+                guardband_syntax::Item::Use(_) => continue,
+            };
+            if file
+                .parse
+                .errors
+                .iter()
+                .any(|e| span.start <= e.span.start && e.span.start <= span.end)
+            {
+                out.push((file.id, span));
+            }
+        }
+    }
+    out
+}
+
 fn run_rules(
     ws: &Workspace,
     model: &Model,
@@ -153,6 +180,14 @@ fn run_rules(
             findings.push(d);
         }
     }
+    // Where recovery from a syntax error had to guess at the tree, lint
+    // findings would be claims about text the user did not write.
+    let guessed = guessed_items(ws);
+    findings.retain(|d| {
+        !guessed
+            .iter()
+            .any(|(f, s)| *f == d.file && s.start <= d.span.start && d.span.start <= s.end)
+    });
     let mut waivers = suppress::collect(ws, &mut diagnostics);
     diagnostics.extend(suppress::apply(ws, &mut waivers, findings));
     diagnostics.extend(suppress::unused(&waivers));

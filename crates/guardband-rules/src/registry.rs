@@ -140,6 +140,36 @@ static RULES: &[RuleInfo] = &[
         Some(Severity::Error),
         "a fault case's expectation contradicted by the derived worst case"
     ),
+    rule!(
+        supply_surge_exceeded,
+        "supply-surge-exceeded",
+        Some(Severity::Error),
+        "a startup surge above the supply's surge limit, however it is bounded"
+    ),
+    rule!(
+        pass_device_weak,
+        "pass-device-weak",
+        Some(Severity::Error),
+        "a pass device that cannot deliver the rated load at its weak corner"
+    ),
+    rule!(
+        undervoltage_threshold_in_regulation,
+        "undervoltage-threshold-in-regulation",
+        Some(Severity::Error),
+        "an undervoltage threshold that reaches the output's regulation range"
+    ),
+    rule!(
+        wire_rated_at_fusing,
+        "wire-rated-at-fusing",
+        Some(Severity::Warning),
+        "a bond wire rated at its Preece fusing current, with no derating stated"
+    ),
+    rule!(
+        figure_not_derived,
+        "figure-not-derived",
+        Some(Severity::Info),
+        "a figure not derived because an input is missing or has an error"
+    ),
 ];
 
 /// Every lint rule, in documentation order.
@@ -153,7 +183,7 @@ mod tests {
 
     #[test]
     fn every_rule_is_documented_with_all_sections() {
-        assert_eq!(registry().len(), 11);
+        assert_eq!(registry().len(), 16);
         for r in registry() {
             let doc = r.documentation();
             for section in [

@@ -144,12 +144,15 @@ pub enum ExprKind {
     Binary(BinaryOp, Box<Expr>, Box<Expr>),
     /// `lo .. hi`
     Range(Box<Expr>, Box<Expr>),
-    /// `base ± tol`, `base +up -down`, or a bare `± tol` (no base).
+    /// `base ± tol`, `base +up -down`, or a bare `± tol` (no base), with an
+    /// optional `at K sigma` saying how many standard deviations the stated
+    /// extremes are.
     Tolerance {
         base: Option<Box<Expr>>,
         plus: Box<Expr>,
         minus: Box<Expr>,
         symmetric: bool,
+        sigma: Option<Box<Expr>>,
     },
     /// `min(a, b)`
     Call(Ident, Vec<Expr>),

@@ -237,7 +237,7 @@ impl<'s> Fast<'_, 's> {
         Some(tree)
     }
 
-    /// `unary [± unary | +N -N]`: a value with its tolerance.
+    /// `unary [± unary | +N -N] [at N sigma]`: a value with its tolerance.
     fn toleranced(&mut self) -> Fallback<Expr> {
         let base = self.unary()?;
         let (plus, minus, symmetric) = if self.eat(Token::PlusMinus) {
@@ -246,7 +246,43 @@ impl<'s> Fast<'_, 's> {
         } else if let Some((plus, minus)) = self.asymmetric() {
             (plus, minus, false)
         } else {
-            return Some(base);
+            // A bare tolerance (`± 5 %`) may carry its own `at N sigma`.
+            return match base.kind {
+                ExprKind::Tolerance {
+                    base: None,
+                    plus,
+                    minus,
+                    symmetric,
+                    sigma: None,
+                } if self.at_sigma_ahead() => {
+                    let sigma = self.at_sigma()?;
+                    let span = base.span.start..self.end();
+                    Some(Expr {
+                        kind: ExprKind::Tolerance {
+                            base: None,
+                            plus,
+                            minus,
+                            symmetric,
+                            sigma: Some(Box::new(sigma)),
+                        },
+                        span,
+                    })
+                }
+                kind => {
+                    if self.at_sigma_ahead() {
+                        return None;
+                    }
+                    Some(Expr {
+                        kind,
+                        span: base.span,
+                    })
+                }
+            };
+        };
+        let sigma = if self.at_sigma_ahead() {
+            Some(Box::new(self.at_sigma()?))
+        } else {
+            None
         };
         let span = base.span.start..self.end();
         Some(Expr {
@@ -255,9 +291,26 @@ impl<'s> Fast<'_, 's> {
                 plus: Box::new(plus),
                 minus: Box::new(minus),
                 symmetric,
+                sigma,
             },
             span,
         })
+    }
+
+    /// Whether `at NUMBER` comes next.
+    fn at_sigma_ahead(&self) -> bool {
+        matches!(self.peek(), Some(Token::Ident("at")))
+            && matches!(self.peek_at(1), Some((Token::Number(_), _)))
+    }
+
+    /// `at N sigma`: the number (its unit is checked by the model).
+    fn at_sigma(&mut self) -> Fallback<Expr> {
+        self.at += 1;
+        let (Token::Number(n), span) = self.tokens.get(self.at)?.clone() else {
+            return None;
+        };
+        self.at += 1;
+        Some(number_expr(self.source, n, span))
     }
 
     /// `+10 % -20 %`, each sign touching its number; else nothing is taken.
@@ -308,6 +361,7 @@ impl<'s> Fast<'_, 's> {
                 plus: Box::new(tol.clone()),
                 minus: Box::new(tol),
                 symmetric: true,
+                sigma: None,
             },
             span,
         })

@@ -390,11 +390,13 @@ mod tests {
                     plus,
                     minus,
                     symmetric,
+                    sigma,
                 } => format!(
-                    "({} tol {} {} {symmetric})",
+                    "({} tol {} {} {symmetric} at {})",
                     base.as_ref().map(|b| expr(b)).unwrap_or_default(),
                     expr(plus),
-                    expr(minus)
+                    expr(minus),
+                    sigma.as_ref().map(|k| expr(k)).unwrap_or_default()
                 ),
                 ExprKind::Call(n, args) => format!(
                     "{}({})",

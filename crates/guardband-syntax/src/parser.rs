@@ -118,7 +118,7 @@ fn full_parse(
     max_nesting: usize,
 ) -> Parse {
     let (tokens, mut errors) = limit_nesting(tokens, max_nesting);
-    let (tokens, unbalanced) = balance_delimiters(tokens, source.len());
+    let (tokens, unbalanced) = balance_delimiters(source, tokens);
     errors.extend(unbalanced);
     let eoi: SimpleSpan = (source.len()..source.len()).into();
     let tokens: Vec<(Token<'_>, SimpleSpan)> =
@@ -148,18 +148,47 @@ fn full_parse(
     }
 }
 
+/// The indentation (in columns, a tab counting four) of the line that a
+/// token at `offset` starts, if it is the first token on its line.
+fn line_indent(source: &str, previous_end: usize, offset: usize) -> Option<usize> {
+    let between = source.get(previous_end..offset).unwrap_or("");
+    if previous_end != 0 && !between.contains(['\n', '\r']) {
+        return None;
+    }
+    let line = &source[..offset];
+    let start = line.rfind(['\n', '\r']).map(|i| i + 1).unwrap_or(0);
+    Some(
+        line[start..]
+            .chars()
+            .map(|c| if c == '\t' { 4 } else { 1 })
+            .sum(),
+    )
+}
+
 /// Makes braces and parentheses balance before parsing: an unclosed `(` is
-/// closed at the `}` or end of file that ends its block, an unclosed `{` at
-/// the end of file, and a `)` that closes nothing is dropped, each with an
-/// error at the unmatched delimiter. Without this, recovery from a file that
-/// ends inside many open blocks backtracks exponentially in their number.
-fn balance_delimiters(
-    tokens: Vec<(Token<'_>, Span)>,
-    end: usize,
-) -> (Vec<(Token<'_>, Span)>, Vec<SyntaxError>) {
+/// closed at the `}` or end of file that ends its block, a `)` that closes
+/// nothing is dropped, each with an error at the unmatched delimiter.
+///
+/// An unclosed `{` is closed where the indentation says its block ends:
+/// before the first line indented no deeper than the line that opened it
+/// (a `}` at that depth closes the block it lines up with). So a missing
+/// `}` is reported at the block left open, and the blocks after it are
+/// parsed where they were written, not inside it. Only as many braces as
+/// are missing are closed this way; the rest of an unbalanced file closes
+/// at the end. Without this, recovery from a file that ends inside many
+/// open blocks backtracks exponentially in their number.
+fn balance_delimiters<'s>(
+    source: &str,
+    tokens: Vec<(Token<'s>, Span)>,
+) -> (Vec<(Token<'s>, Span)>, Vec<SyntaxError>) {
+    let end = source.len();
+    let opens = tokens.iter().filter(|(t, _)| *t == Token::LBrace).count();
+    let closes = tokens.iter().filter(|(t, _)| *t == Token::RBrace).count();
+    let mut missing = opens.saturating_sub(closes);
     let mut out = Vec::with_capacity(tokens.len() + 4);
     let mut errors = Vec::new();
-    let mut open: Vec<(bool, Span)> = Vec::new(); // (is a brace, where it opened)
+    // (is a brace, where it opened, the indentation of its line)
+    let mut open: Vec<(bool, Span, usize)> = Vec::new();
     let unclosed = |brace: bool, span: Span| SyntaxError {
         span,
         message: if brace {
@@ -173,12 +202,29 @@ fn balance_delimiters(
             "add the `)` that ends this group".to_string()
         },
     };
+    let mut previous_end = 0;
+    let mut indent = 0;
     for (tok, span) in tokens {
+        if let Some(i) = line_indent(source, previous_end, span.start) {
+            indent = i;
+            // A line no deeper than an open block's own line ends that block,
+            // unless it is the `}` that lines up with it.
+            while missing > 0
+                && let Some((true, at, depth)) = open.last().cloned()
+                && (indent < depth || (indent == depth && tok != Token::RBrace))
+            {
+                errors.push(unclosed(true, at));
+                out.push((Token::RBrace, span.start..span.start));
+                open.pop();
+                missing -= 1;
+            }
+        }
+        previous_end = span.end;
         match tok {
-            Token::LBrace => open.push((true, span.clone())),
-            Token::LParen => open.push((false, span.clone())),
+            Token::LBrace => open.push((true, span.clone(), indent)),
+            Token::LParen => open.push((false, span.clone(), indent)),
             Token::RParen => match open.last() {
-                Some((false, _)) => {
+                Some((false, _, _)) => {
                     open.pop();
                 }
                 _ => {
@@ -191,7 +237,7 @@ fn balance_delimiters(
                 }
             },
             Token::RBrace => {
-                while let Some((false, at)) = open.last().cloned() {
+                while let Some((false, at, _)) = open.last().cloned() {
                     errors.push(unclosed(false, at));
                     out.push((Token::RParen, span.start..span.start));
                     open.pop();
@@ -202,7 +248,7 @@ fn balance_delimiters(
         }
         out.push((tok, span));
     }
-    while let Some((brace, at)) = open.pop() {
+    while let Some((brace, at, _)) = open.pop() {
         errors.push(unclosed(brace, at));
         let closer = if brace { Token::RBrace } else { Token::RParen };
         out.push((closer, end..end));
@@ -423,6 +469,7 @@ where
                     plus: Box::new(tol.clone()),
                     minus: Box::new(tol),
                     symmetric: true,
+                    sigma: None,
                 },
                 span: range(e.span()),
             });
@@ -474,16 +521,57 @@ where
                 .then(signed(Token::Minus))
                 .map(|(p, m)| (p, m, false)));
 
+        // `at 3 sigma`: how many standard deviations the stated extremes are.
+        let at_sigma = select! { Token::Ident(s) if s == "at" => () }
+            .ignore_then(number)
+            .labelled("`at N sigma`");
+
         let toleranced = unary
             .then(tolerance_suffix.or_not())
-            .map_with(|(base, tol), e| match tol {
-                None => base,
+            .then(at_sigma.or_not())
+            .validate(|((base, tol), sigma), e, emitter| match tol {
+                None => match (base.kind, sigma) {
+                    (kind, None) => Expr {
+                        kind,
+                        span: base.span,
+                    },
+                    (
+                        ExprKind::Tolerance {
+                            base: None,
+                            plus,
+                            minus,
+                            symmetric,
+                            sigma: None,
+                        },
+                        Some(k),
+                    ) => Expr {
+                        kind: ExprKind::Tolerance {
+                            base: None,
+                            plus,
+                            minus,
+                            symmetric,
+                            sigma: Some(Box::new(k)),
+                        },
+                        span: range(e.span()),
+                    },
+                    (_, Some(_)) => {
+                        emitter.emit(Rich::custom(
+                            e.span(),
+                            "`at N sigma` belongs after a tolerance, e.g. `40 uA ± 18 % at 3 sigma`",
+                        ));
+                        Expr {
+                            kind: ExprKind::Error,
+                            span: range(e.span()),
+                        }
+                    }
+                },
                 Some((plus, minus, symmetric)) => Expr {
                     kind: ExprKind::Tolerance {
                         base: Some(Box::new(base)),
                         plus: Box::new(plus),
                         minus: Box::new(minus),
                         symmetric,
+                        sigma: sigma.map(Box::new),
                     },
                     span: range(e.span()),
                 },
@@ -757,6 +845,25 @@ mod tests {
         for e in &p.errors {
             assert!(e.span.end <= src.len());
         }
+    }
+
+    #[test]
+    fn a_missing_brace_is_reported_at_the_block_left_open() {
+        let src = "regulator r {\n    limit sensed {\n        ratio = 2\n    pin vout {\n        off_chip = true\n    }\n}\n";
+        let p = parse(src);
+        assert_eq!(p.errors.len(), 1, "{:?}", p.errors);
+        let at = &src[p.errors[0].span.clone()];
+        assert_eq!(at, "{");
+        assert_eq!(p.errors[0].span.start, src.find("sensed {").unwrap() + 7);
+        // The pin is parsed as the regulator's, not inside the limit.
+        let Item::Block(r) = &p.file.items[0] else {
+            panic!()
+        };
+        assert!(
+            r.members
+                .iter()
+                .any(|m| matches!(m, Member::Block(b) if b.keyword.text == "pin"))
+        );
     }
 
     #[test]

@@ -114,6 +114,38 @@ impl Dimension {
         self.times(other.powi(-1))
     }
 
+    /// Product of two dimensions, or `None` when an exponent would leave
+    /// -127 ..= 127 (a unit such as `m^12` multiplied many times).
+    pub fn checked_times(self, other: Dimension) -> Option<Dimension> {
+        let mut out = [0i8; 9];
+        for (i, slot) in out.iter_mut().enumerate() {
+            let v = self.0[i] as i32 + other.0[i] as i32;
+            if !(-127..=127).contains(&v) {
+                return None;
+            }
+            *slot = v as i8;
+        }
+        Some(Dimension(out))
+    }
+
+    /// Quotient of two dimensions, or `None` when an exponent would overflow.
+    pub fn checked_per(self, other: Dimension) -> Option<Dimension> {
+        self.checked_times(other.checked_powi(-1)?)
+    }
+
+    /// Integer power, or `None` when an exponent would leave -127 ..= 127.
+    pub fn checked_powi(self, n: i32) -> Option<Dimension> {
+        let mut out = [0i8; 9];
+        for (i, slot) in out.iter_mut().enumerate() {
+            let v = (self.0[i] as i32).checked_mul(n)?;
+            if !(-127..=127).contains(&v) {
+                return None;
+            }
+            *slot = v as i8;
+        }
+        Some(Dimension(out))
+    }
+
     /// Integer power of a dimension.
     pub fn powi(self, n: i32) -> Dimension {
         let mut out = [0i8; 9];

@@ -80,7 +80,13 @@ pub fn parse_unit(text: &str) -> Result<ParsedUnit, UnitError> {
         })?;
         let power = if divide { -power } else { power };
         factor *= (def.factor * prefix).powi(power);
-        dim = dim.times(def.dim.powi(power));
+        dim = def
+            .dim
+            .checked_powi(power)
+            .and_then(|d| dim.checked_times(d))
+            .ok_or_else(|| {
+                UnitError::Malformed(format!("`{text}` has a power beyond ±127 of a base unit"))
+            })?;
         atoms += 1;
         if atoms == 1 && power == 1 && !divide {
             lone_temp = Some(def.temp);
@@ -137,9 +143,46 @@ fn suggest(atom: &str) -> Vec<String> {
         if d <= 1 && u.symbol.chars().count() > 1 {
             found.push((d, u.symbol.to_string()));
         }
-        // Spelled-out names: `volt` -> `V`, `ohms` -> `ohm`.
-        if edit_distance(&lower, u.name) <= 1 || lower.trim_end_matches('s') == u.name {
+        // Spelled-out names: `volt` -> `V`, `ohms` -> `ohm`, `years` -> `yr`.
+        let word = u.name.split([' ', '(']).next().unwrap_or(u.name);
+        if edit_distance(&lower, word) <= 1 || lower.trim_end_matches('s') == word {
             found.push((0, u.symbol.to_string()));
+        }
+    }
+    // Common abbreviations that are not symbols here.
+    for (said, meant) in [
+        ("sec", "s"),
+        ("secs", "s"),
+        ("hr", "h"),
+        ("hrs", "h"),
+        ("yrs", "yr"),
+        ("y", "yr"),
+        ("amp", "A"),
+        ("amps", "A"),
+        ("celsius", "degC"),
+        ("degc", "degC"),
+        ("deg_c", "degC"),
+        ("percent", "%"),
+    ] {
+        if lower == said {
+            found.push((0, meant.to_string()));
+        }
+    }
+    // The right letters in the wrong case, prefix included: `uf` -> `uF`, `MA` -> `mA`.
+    for u in UNITS {
+        if u.symbol.to_lowercase() == lower {
+            found.push((0, u.symbol.to_string()));
+        }
+        if !u.prefixable {
+            continue;
+        }
+        for p in crate::table::PREFIXES {
+            let spelled = format!("{}{}", p.symbol, u.symbol);
+            if spelled.to_lowercase() == lower {
+                // The prefix as written wins: `ma` is more likely mA than MA.
+                let rank = usize::from(!atom.starts_with(p.symbol));
+                found.push((rank, spelled));
+            }
         }
     }
     // A known prefix in front of a near-miss: `mAA` -> `mA`.

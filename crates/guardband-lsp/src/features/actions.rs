@@ -131,17 +131,6 @@ fn fixes(analysis: &Analysis, file: FileId) -> Vec<Fix> {
     out
 }
 
-/// Rounds up to three significant digits, so the fix never undershoots.
-fn ceil_3(x: f64) -> f64 {
-    if x <= 0.0 || !x.is_finite() {
-        return x;
-    }
-    let step = 10f64.powi(x.log10().floor() as i32 - 2);
-    let r = (x / step).ceil() * step;
-    // Undo float noise such as 261.00000000000003.
-    (r / step).round() * step
-}
-
 fn conductor_of<'a>(analysis: &'a Analysis, d: &Diagnostic) -> Option<&'a Node> {
     analysis
         .checked
@@ -157,29 +146,14 @@ fn size_conductor(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<F
     let model = &analysis.checked.model;
     let node = conductor_of(analysis, d)?;
     let derived = analysis.checked.derived_for(model.item_of(node.id).id)?;
-    let worst = derived.worst.as_ref()?.value;
-    let rating = *derived
-        .conductors
-        .iter()
-        .find(|c| c.node == node.id)?
-        .rating
-        .as_ref()
-        .ok()?;
-    if rating <= 0.0 || worst <= rating {
+    let cr = derived.conductor(node.id)?;
+    let worst = *cr.current.as_ref().ok()?;
+    let rating = *cr.rating.as_ref().ok()?;
+    if rating <= 0.0 || !guardband_rules::compare::below(rating, worst) {
         return None;
     }
     let ratio = worst / rating;
-    let (key, exponent) = if node.field("rating").is_some() {
-        ("rating", 1.0)
-    } else if node.field("layer").is_some() {
-        ("width", 1.0)
-    } else if node.field("diameter").is_some() {
-        ("diameter", 2.0 / 3.0)
-    } else if node.field("placement").is_some() {
-        ("width", 1.0 / 0.725)
-    } else {
-        return None;
-    };
+    let (key, exponent) = cr.kind.scaling()?;
     let field = node.field(key)?;
     let v = field.quantity()?;
     if !v.is_exact() {
@@ -192,7 +166,7 @@ fn size_conductor(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<F
     let parsed = parse_unit(&unit).ok()?;
     // A hair of headroom so that rounding in the rating itself cannot leave it short.
     let needed = v.lo * ratio.powf(exponent) * 1.001;
-    let written = ceil_3(parsed.diff_from_si(needed));
+    let written = guardband_rules::format::ceil3(parsed.diff_from_si(needed));
     let new_text = format!("{} {unit}", guardband_rules::format::number(written));
     Some(Fix {
         title: format!(
@@ -284,17 +258,5 @@ fn waiver(analysis: &Analysis, d: &Diagnostic, index: usize) -> Fix {
         )],
         safe: false,
         diagnostic: index,
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::ceil_3;
-
-    #[test]
-    fn rounds_up_to_three_digits() {
-        assert_eq!(ceil_3(260.1), 261.0);
-        assert!((ceil_3(0.012341) - 0.0124).abs() < 1e-15);
-        assert_eq!(ceil_3(1200.0), 1200.0);
     }
 }

@@ -55,12 +55,12 @@ pub fn hints(
     {
         if node.kind == BlockKind::Limit
             && let Some(d) = analysis.checked.derived_for(model.item_of(node.id).id)
-            && let Some(lw) = d.limits.iter().find(|l| l.node == node.id)
+            && let Some(Ok(window)) = d.limit(node.id).map(|l| l.window.as_ref())
             && (lo..=hi).contains(&node.name_span.end)
         {
             out.push(hint(
                 encoding.position(index, node.name_span.end),
-                format!("window {}", bounds(&lw.window)),
+                format!("window {}", bounds(window)),
             ));
         }
         for f in &node.fields {

@@ -22,7 +22,6 @@
 //! Strengthen the clamp, or limit the amplifier's output current.
 
 use crate::context::Context;
-use crate::format::in_unit;
 use guardband_model::{BlockKind, Diagnostic, Severity};
 
 const RULE: &str = "clamp-too-weak";
@@ -39,13 +38,26 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             let Some(clamp) = limit.quantity("clamp_drive") else {
                 continue;
             };
-            if clamp.lo <= amp.hi {
-                let show =
-                    |x: f64, v: &guardband_model::Value| in_unit(x, v.kind, v.unit.as_deref());
+            if crate::compare::at_most(clamp.lo, amp.hi) {
+                let (c, a) =
+                    crate::format::versus(clamp.lo, amp.hi, clamp.kind, clamp.unit.as_deref());
+                let gap = if crate::compare::below(clamp.lo, amp.hi) {
+                    format!(
+                        ", {} short",
+                        crate::format::difference(
+                            clamp.lo,
+                            amp.hi,
+                            clamp.kind,
+                            clamp.unit.as_deref()
+                        )
+                    )
+                } else {
+                    String::new()
+                };
                 let d = ctx
                     .at(RULE, Severity::Error, limit, "clamp_drive", format!(
-                        "`{}` clamp drive {} (minimum) does not exceed the amplifier drive {} (maximum)",
-                        limit.key(), show(clamp.lo, clamp), show(amp.hi, amp)
+                        "`{}` clamp drive {c} (minimum) does not exceed the amplifier drive {a} (maximum){gap}",
+                        limit.key()
                     ))
                     .primary(format!("clamp {}", crate::format::bounds(clamp)));
                 let d = ctx.label(

@@ -1,9 +1,18 @@
 //! ## What it flags
-//! A fault case whose stated expectation the derived worst case contradicts:
-//! `expect current` in a short or overload (short current: foldback, else the
-//! worst current) or at startup (the surge); `expect junction` in a short
-//! (junction temperature of the sustained short); `expect time` at startup
-//! (worst-case startup time). `expect output` is recorded but not derived.
+//! A fault case whose stated expectation the derived bounds contradict at
+//! some corner the spec admits:
+//! - `expect current` in a `short_to_ground` case: the current with the
+//!   output at 0 V (a foldback's or fixed current, else the limit);
+//! - `expect current` in an `overload` case: the most that can flow at any
+//!   output voltage (the top of the limit window, or of the trip current);
+//! - `expect current` at `startup`: the surge;
+//! - `expect junction` in a short (at 0 V) or an overload (the worst point
+//!   of a partial short);
+//! - `expect time` at `startup`: the startup time.
+//!
+//! `<=` and `<` are held against the upper bound of the figure, `>=` and
+//! `>` against its lower bound; a bound with a tolerance is taken at its
+//! strict end. `expect output` is recorded but not derived.
 //!
 //! ## Why it matters
 //! The plan says what the bench or simulation should show. If the spec's own
@@ -25,20 +34,77 @@
 //! Correct the expectation to what the design does, or change the design so
 //! that its worst case meets the expectation.
 
+use crate::compare;
 use crate::context::Context;
-use crate::format::in_unit;
+use crate::derive::{Derived, envelope};
+use crate::format::{difference, versus};
 use guardband_model::{BlockKind, Diagnostic, Severity, Value};
 use guardband_syntax::Relation;
 
 const RULE: &str = "expectation-violated";
 
-fn holds(relation: Relation, derived: f64, bound: &Value) -> bool {
-    match relation {
-        Relation::AtMost => derived <= bound.hi,
-        Relation::Below => derived < bound.hi,
-        Relation::AtLeast => derived >= bound.lo,
-        Relation::Above => derived > bound.lo,
-        Relation::Assign => true,
+/// A derived figure's bounds over every corner (either may be unknown) and why.
+struct Bounds {
+    lo: Option<f64>,
+    hi: Option<f64>,
+    why: String,
+}
+
+fn figure(d: &Derived, event: &str, name: &str) -> Option<Bounds> {
+    let currents = d.currents.as_ref().ok();
+    match (event, name) {
+        ("short_to_ground", "current") => {
+            let c = currents?;
+            let (hi, cause) = c.upper_at(0.0)?;
+            Some(Bounds {
+                lo: c.lower_at(0.0),
+                hi: Some(hi),
+                why: format!("{} with the output at 0 V", cause.what),
+            })
+        }
+        ("overload", "current") => {
+            let w = d.worst.as_ref().ok()?;
+            Some(Bounds {
+                lo: currents
+                    .and_then(|c| c.lower.as_ref().ok())
+                    .and_then(|l| envelope::least(l)),
+                hi: Some(w.value),
+                why: w.cause.what.clone(),
+            })
+        }
+        ("startup", "current") => {
+            let s = d.startup.as_ref().ok()?;
+            Some(Bounds {
+                lo: None,
+                hi: Some(s.surge),
+                why: s.surge_reason.clone(),
+            })
+        }
+        ("short_to_ground", "junction") => {
+            let h = d.short.as_ref().ok()?;
+            Some(Bounds {
+                lo: h.junction_lo,
+                hi: Some(h.junction),
+                why: "junction in a sustained short, T_A + P·θJA".into(),
+            })
+        }
+        ("overload", "junction") => {
+            let h = d.overload.as_ref().ok()?;
+            Some(Bounds {
+                lo: None,
+                hi: Some(h.junction),
+                why: "junction at the worst point of an overload, T_A + P·θJA".into(),
+            })
+        }
+        ("startup", "time") => {
+            let s = d.startup.as_ref().ok()?;
+            Some(Bounds {
+                lo: s.time_lo,
+                hi: Some(s.time.unwrap_or(f64::INFINITY)),
+                why: "startup time".into(),
+            })
+        }
+        _ => None,
     }
 }
 
@@ -46,53 +112,79 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         for fault in ctx.model.children(reg, BlockKind::Fault) {
-            let event = fault.choice("event");
+            let Some(event) = fault.choice("event") else {
+                continue;
+            };
             for exp in fault.fields_named("expect") {
                 let Some(bound) = exp.quantity() else {
                     continue;
                 };
                 let name = exp.name.as_deref().unwrap_or("");
-                let derived: Option<(f64, String)> = match (event, name) {
-                    (Some("short_to_ground" | "overload"), "current") => d
-                        .short
-                        .as_ref()
-                        .map(|s| (s.current, s.reason.clone()))
-                        .or_else(|| d.worst.as_ref().map(|w| (w.value, w.reason.clone()))),
-                    (Some("startup"), "current") => d
-                        .startup
-                        .as_ref()
-                        .map(|s| (s.surge, s.surge_reason.clone())),
-                    (Some("short_to_ground" | "overload"), "junction") => {
-                        d.short.as_ref().map(|s| {
-                            (
-                                s.junction,
-                                "sustained-short junction temperature".to_string(),
-                            )
-                        })
-                    }
-                    (Some("startup"), "time") => d
-                        .startup
-                        .as_ref()
-                        .and_then(|s| s.time.map(|t| (t, "worst-case startup time".to_string()))),
-                    _ => None,
-                };
-                let Some((value, why)) = derived else {
+                let Some(fig) = figure(d, event, name) else {
                     continue;
                 };
-                let worst = value;
-                if !holds(exp.relation, worst, bound) {
-                    let show = |x: f64| in_unit(x, bound.kind, bound.unit.as_deref());
-                    out.push(
-                        Diagnostic::error(RULE, fault.file, exp.span.clone(), format!(
-                            "fault `{}` expects {name} {} {}, but the worst case is {} ({why})",
-                            fault.key(), exp.relation.symbol(), show(if matches!(exp.relation, Relation::AtMost | Relation::Below) { bound.hi } else { bound.lo }), show(worst)
-                        ))
+                let Some((derived, limit, upper)) = contradiction(exp.relation, &fig, bound) else {
+                    continue;
+                };
+                let show = |a: f64, b: f64| versus(a, b, bound.kind, bound.unit.as_deref());
+                let message = if derived.is_infinite() {
+                    format!(
+                        "fault `{}` expects {name} {} {}, but the output never starts",
+                        fault.key(),
+                        exp.relation.symbol(),
+                        show(limit, limit).0
+                    )
+                } else {
+                    let (x, l) = show(derived, limit);
+                    let by = difference(derived, limit, bound.kind, bound.unit.as_deref());
+                    if upper {
+                        format!(
+                            "fault `{}` expects {name} {} {l}, but it can reach {x}, {by} more ({})",
+                            fault.key(),
+                            exp.relation.symbol(),
+                            fig.why
+                        )
+                    } else {
+                        format!(
+                            "fault `{}` expects {name} {} {l}, but it can be as low as {x}, {by} less ({})",
+                            fault.key(),
+                            exp.relation.symbol(),
+                            fig.why
+                        )
+                    }
+                };
+                out.push(
+                    Diagnostic::error(RULE, fault.file, exp.span.clone(), message)
                         .with_severity(Severity::Error)
-                        .primary("contradicted by the derived worst case")
-                        .help("correct the expectation, or change the design so that its worst case meets it"),
-                    );
-                }
+                        .primary("contradicted by the derived bounds")
+                        .help("correct the expectation, or change the design so that every corner meets it"),
+                );
             }
         }
+    }
+}
+
+/// The derived bound that breaks the expectation, the expectation's strict
+/// end, and whether it is the upper bound; `None` when it holds (or the
+/// bound it needs is unknown).
+fn contradiction(relation: Relation, fig: &Bounds, bound: &Value) -> Option<(f64, f64, bool)> {
+    match relation {
+        Relation::AtMost => {
+            let hi = fig.hi?;
+            compare::exceeds(hi, bound.lo).then_some((hi, bound.lo, true))
+        }
+        Relation::Below => {
+            let hi = fig.hi?;
+            compare::at_least(hi, bound.lo).then_some((hi, bound.lo, true))
+        }
+        Relation::AtLeast => {
+            let lo = fig.lo?;
+            compare::below(lo, bound.hi).then_some((lo, bound.hi, false))
+        }
+        Relation::Above => {
+            let lo = fig.lo?;
+            compare::at_most(lo, bound.hi).then_some((lo, bound.hi, false))
+        }
+        Relation::Assign => None,
     }
 }

@@ -3,8 +3,12 @@
 //! an analysis that does not drive the loop into limiting: no `force`, a pin
 //! forced by an ideal current source, a forced voltage not below the output's
 //! regulation range, or a forcing resistance high enough that the output can
-//! still regulate (error); a break point other than the pass device's gate,
-//! or no `require phase_margin` (warnings).
+//! still regulate (error); a forced name that is not a pin of the
+//! regulator, a forced supply pin (`role = supply`), a requirement written
+//! backwards (`require phase_margin <= 45 deg`), or the clamp on the device
+//! side of the break (`clamp_side = device`) (errors); a break point other
+//! than the pass device's gate, no `clamp_side`, or no
+//! `require phase_margin` (warnings).
 //!
 //! ## Why it matters
 //! While limiting, the replica, comparator and clamp form a second feedback
@@ -21,17 +25,19 @@
 //! ## Passing example
 //! ```text
 //! analysis limit_loop { loop = sensed  force vout = 1.2 V  break_at = pass.gate
-//!                       require phase_margin >= 45 deg }
+//!                       clamp_side = driving  require phase_margin >= 45 deg }
 //! ```
 //!
 //! ## How to fix
 //! Force the output below regulation with a voltage source or a resistance,
-//! break the loop at `pass.gate` (the common node, clamp on the driving side)
-//! and state the phase margin the loop must meet.
+//! break the loop at `pass.gate` (the common node) with the clamp on the
+//! driving side (`clamp_side = driving`), and state the phase margin the
+//! loop must meet (`>=`).
 
 use crate::context::Context;
 use crate::format::in_unit;
 use guardband_model::{BlockKind, Diagnostic, FieldValue, Severity};
+use guardband_syntax::Relation;
 use guardband_units::{Dimension, QuantityKind};
 
 const RULE: &str = "limit-loop-analysis";
@@ -62,9 +68,9 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             let window = ctx
                 .derived
                 .iter()
-                .flat_map(|d| &d.limits)
-                .find(|l| l.node == limit.id)
-                .map(|l| &l.window);
+                .find(|d| d.regulator == reg.id)
+                .and_then(|d| d.limit(limit.id))
+                .and_then(|l| l.window.as_ref().ok());
             for a in analyses {
                 let forces: Vec<_> = a.fields_named("force").collect();
                 if forces.is_empty() {
@@ -83,6 +89,56 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     );
                 }
                 for f in forces {
+                    let pin = ctx
+                        .model
+                        .children(reg, BlockKind::Pin)
+                        .find(|p| p.key() == f.key);
+                    match pin {
+                        None => {
+                            let pins: Vec<&str> = ctx
+                                .model
+                                .children(reg, BlockKind::Pin)
+                                .map(|p| p.key())
+                                .collect();
+                            let mut d = Diagnostic::error(
+                                RULE,
+                                a.file,
+                                f.key_span.clone(),
+                                format!(
+                                    "analysis `{}` forces `{}`, which is not a pin of `{}`",
+                                    a.key(),
+                                    f.key,
+                                    reg.key()
+                                ),
+                            )
+                            .primary("no such pin");
+                            d = match guardband_model::did_you_mean(&f.key, pins.iter().copied()) {
+                                Some(s) => d.help(format!("did you mean `force {s}`?")),
+                                None => d.help("force the regulator's output pin"),
+                            };
+                            out.push(d);
+                            continue;
+                        }
+                        Some(p) if p.choice("role") == Some("supply") => {
+                            let d = Diagnostic::error(
+                                RULE,
+                                a.file,
+                                f.key_span.clone(),
+                                format!(
+                                    "analysis `{}` forces the supply pin `{}`; the limit loop is driven by forcing the output",
+                                    a.key(),
+                                    f.key
+                                ),
+                            )
+                            .primary("a supply pin");
+                            out.push(
+                                ctx.label(d, p, "role", "declared a supply pin here")
+                                    .help("force the output pin below regulation instead"),
+                            );
+                            continue;
+                        }
+                        Some(_) => {}
+                    }
                     let Some(v) = f.quantity() else { continue };
                     let show = |x: f64| in_unit(x, v.kind, v.unit.as_deref());
                     if v.kind == QuantityKind::CURRENT {
@@ -93,11 +149,13 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         );
                     } else if v.kind == QuantityKind::VOLTAGE {
                         if let Some(out_v) = output
-                            && v.hi >= out_v.lo
+                            && crate::compare::at_least(v.hi, out_v.lo)
                         {
+                            let (forced, low) =
+                                crate::format::versus(v.hi, out_v.lo, v.kind, v.unit.as_deref());
                             let d = Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
-                                    "analysis `{}` forces `{}` to {}, not below regulation ({} minimum)",
-                                    a.key(), f.key, show(v.hi), in_unit(out_v.lo, out_v.kind, out_v.unit.as_deref())
+                                    "analysis `{}` forces `{}` to {forced}, not below regulation ({low} minimum)",
+                                    a.key(), f.key
                                 ))
                                 .primary("the loop stays in regulation here")
                                 .help("force a voltage clearly below the output's low limit");
@@ -107,7 +165,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         && let (Some(out_v), Some(w)) = (output, window)
                     {
                         // With a resistance the output settles at R·I_limit if that is below regulation.
-                        if v.hi * w.hi >= out_v.lo {
+                        if crate::compare::at_least(v.hi * w.hi, out_v.lo) {
                             out.push(
                                     Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
                                         "analysis `{}`: {} × limit top {} = {} reaches regulation ({} minimum), so the loop may not limit",
@@ -133,6 +191,56 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             .primary(if a.field("break_at").is_some() { "breaks elsewhere" } else { "no `break_at`" })
                             .help("break at `pass.gate`, the node both loops share, with the clamp on the driving side"),
                     );
+                }
+                for req in a.fields_named("require") {
+                    if matches!(req.relation, Relation::AtMost | Relation::Below) {
+                        let name = req.name.as_deref().unwrap_or("");
+                        out.push(
+                            Diagnostic::error(
+                                RULE,
+                                a.file,
+                                req.span.clone(),
+                                format!(
+                                    "analysis `{}` requires {name} {} ...: a margin is a minimum",
+                                    a.key(),
+                                    req.relation.symbol()
+                                ),
+                            )
+                            .primary("written backwards")
+                            .help(format!("write `require {name} >= ...`")),
+                        );
+                    }
+                }
+                match a.choice("clamp_side") {
+                    Some("device") => out.push(
+                        Diagnostic::error(
+                            RULE,
+                            a.file,
+                            ctx.value_span(a, "clamp_side"),
+                            format!(
+                                "analysis `{}` has the clamp on the device side of the break",
+                                a.key()
+                            ),
+                        )
+                        .primary("the clamp must drive the gate from the driving side")
+                        .help("connect the clamp on the driving side of the break (`clamp_side = driving`), so that the loop gain includes it"),
+                    ),
+                    Some(_) => {}
+                    None if a.field("clamp_side").is_none() => out.push(
+                        Diagnostic::error(
+                            RULE,
+                            a.file,
+                            a.header_span.clone(),
+                            format!(
+                                "analysis `{}` does not say which side of the break the clamp connects to",
+                                a.key()
+                            ),
+                        )
+                        .with_severity(Severity::Warning)
+                        .primary("no `clamp_side`")
+                        .help("add `clamp_side = driving` once the set-up puts the clamp on the driving side of the break"),
+                    ),
+                    None => {}
                 }
                 if a.named_field("require", "phase_margin").is_none() {
                     out.push(

@@ -33,9 +33,11 @@
 //! contributor the message names (often the reference resistor: trim it).
 //! The margin is set by `margin` in guardband.toml or in the regulator.
 
+use crate::compare;
 use crate::context::Context;
-use crate::format::{in_unit, percent};
-use guardband_model::{Diagnostic, Severity};
+use crate::derive::{Scheme, escape_ppm, sigmas_below, stat_settings, statistical};
+use crate::format::{difference, in_unit, percent, versus};
+use guardband_model::{Diagnostic, Severity, Value};
 use guardband_units::QuantityKind;
 
 const RULE: &str = "limit-within-load";
@@ -49,24 +51,25 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         for lw in &d.limits {
             let limit = ctx.node(lw.node);
             let (window, key) = match lw.scheme {
-                crate::derive::Scheme::Replica => (&lw.window, "threshold"),
-                crate::derive::Scheme::UndervoltageFixed => match &lw.trip {
-                    Some(t) => (t, "trip_current"),
-                    None => continue,
+                Scheme::Replica => match &lw.window {
+                    Ok(w) => (w, "threshold"),
+                    Err(_) => continue,
+                },
+                Scheme::UndervoltageFixed => match &lw.trip {
+                    Ok(Some(t)) => (t, "trip_current"),
+                    _ => continue,
                 },
             };
             let unit = window.unit.as_deref().or(d.load_unit.as_deref());
             let show = |x: f64| in_unit(x, QuantityKind::CURRENT, unit);
-            // Only worded when there is a finding to word.
-            let need = || {
-                format!(
-                    "rated {} + {} margin = {}",
-                    show(rated),
-                    percent(d.margin),
-                    show(required)
-                )
-            };
-            if window.lo <= required {
+            if compare::at_most(window.lo, required) {
+                let (low, need) = versus(window.lo, required, QuantityKind::CURRENT, unit);
+                let gap = difference(window.lo, required, QuantityKind::CURRENT, unit);
+                let relation = if compare::below(window.lo, required) {
+                    format!("{gap} below")
+                } else {
+                    "equal to".to_string()
+                };
                 let mut diag = ctx
                     .at(
                         RULE,
@@ -74,10 +77,10 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         limit,
                         key,
                         format!(
-                            "`{}` limit low edge {} is at or below {}",
+                            "`{}` limit low edge {low} is {relation} rated {} + {} margin = {need}",
                             limit.key(),
-                            show(window.lo),
-                            need()
+                            show(rated),
+                            percent(d.margin),
                         ),
                     )
                     .primary(format!(
@@ -90,9 +93,9 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 out.push(diag.help("raise the nominal threshold or tighten the largest contributor; the tool compares worst-case corners"));
                 continue;
             }
-            if ctx.config.statistical && lw.scheme == crate::derive::Scheme::Replica {
-                let stat = &lw.stat;
-                let ppm = crate::derive::escape_ppm(stat, required);
+            if ctx.config.statistical && lw.scheme == Scheme::Replica {
+                let Some(stat) = &lw.stat else { continue };
+                let ppm = escape_ppm(stat, required);
                 if ppm > ctx.config.escape_ppm {
                     let mut diag = ctx
                         .at(
@@ -101,11 +104,13 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             limit,
                             key,
                             format!(
-                                "about {} ppm of parts trip `{}` at or below {} (allowed {} ppm)",
-                                crate::format::number(ppm),
+                                "about {} of parts trip `{}` at or below rated {} + {} margin = {} (allowed {})",
+                                crate::format::ppm(ppm, sigmas_below(stat, required)),
                                 limit.key(),
-                                need(),
-                                crate::format::number(ctx.config.escape_ppm)
+                                show(rated),
+                                percent(d.margin),
+                                show(required),
+                                crate::format::ppm(ctx.config.escape_ppm, None)
                             ),
                         )
                         .primary(format!(
@@ -125,18 +130,14 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     }
 }
 
-fn add_contributors(
-    ctx: &Context,
-    mut diag: Diagnostic,
-    window: &guardband_model::Value,
-) -> Diagnostic {
-    let stat = crate::derive::statistical(window, ctx.config.sigma);
+fn add_contributors(ctx: &Context, mut diag: Diagnostic, window: &Value) -> Diagnostic {
+    let stat = statistical(ctx.model, window, &stat_settings(ctx.config));
     for c in stat.contributors.iter().take(3) {
         let s = ctx.model.source(c.source);
-        let swing = if window.nom != 0.0 {
-            c.sigma * ctx.config.sigma / window.nom.abs()
-        } else {
-            0.0
+        let term = window.terms.iter().find(|t| t.source == c.source);
+        let swing = match term {
+            Some(t) if window.nom != 0.0 => (t.high - t.low).abs() / 2.0 / window.nom.abs(),
+            _ => 0.0,
         };
         diag = diag.label(
             s.file,

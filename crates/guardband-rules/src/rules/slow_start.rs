@@ -1,9 +1,14 @@
 //! ## What it flags
-//! Startup that takes longer than `startup.time_max` in the worst case
-//! (largest off-chip capacitance charged to the highest output voltage with
-//! the smallest charging current less the startup load: t = C·V / (I − load)),
-//! or a charging current that cannot start the output at all (at or below the
-//! load at startup).
+//! Startup that can take longer than `startup.time_max`, or a charging
+//! current that cannot start the output at all (not above the load at
+//! startup at some output voltage). The worst time charges the largest
+//! output capacitance to the highest output voltage with the smallest
+//! current the protections let through at each voltage (the low edge of a
+//! limit window, the weak-corner full-gate current, an undervoltage-triggered
+//! limit's fixed current below its threshold), less the largest startup
+//! load, no faster than a soft start's slowest slew:
+//! `t = ∫ max(1/slew, C / (I(V) − load)) dV`, which for a flat current is
+//! `C·V / (I − load)`.
 //!
 //! ## Why it matters
 //! A fixed or limited charging current makes startup slow, and a fixed
@@ -26,8 +31,9 @@
 //! Raise the charging current, keep the load off until the output is up
 //! (`startup.load`), reduce the capacitance, or relax the requirement.
 
+use crate::compare;
 use crate::context::Context;
-use crate::format::in_unit;
+use crate::format::{difference, in_unit, versus};
 use guardband_model::{BlockKind, Diagnostic, Severity};
 use guardband_units::{Dimension, QuantityKind};
 
@@ -36,49 +42,95 @@ const RULE: &str = "slow-start";
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
         let reg = ctx.node(d.regulator);
-        let Some(s) = &d.startup else { continue };
+        let Ok(s) = &d.startup else { continue };
         let start = ctx.model.child(reg, BlockKind::Startup);
         let amps = |x: f64| in_unit(x, QuantityKind::CURRENT, d.load_unit.as_deref());
-        match (s.charge_min, s.time) {
-            (Some(i), None) => {
+        match s.time {
+            Err(stall) => {
                 let (node, key) = match start.filter(|st| st.field("load").is_some()) {
                     Some(st) => (st, "load"),
                     None => (reg, "load"),
                 };
+                let at = if stall > 0.0 {
+                    format!(
+                        " once the output reaches {}",
+                        in_unit(stall, QuantityKind::VOLTAGE, Some("V"))
+                    )
+                } else {
+                    String::new()
+                };
+                let (i, l) = versus(
+                    s.charge_min,
+                    s.load,
+                    QuantityKind::CURRENT,
+                    d.load_unit.as_deref(),
+                );
                 let diag = ctx
                     .at(RULE, Severity::Error, node, key, format!(
-                        "`{}` cannot start: the charging current {} is not above the load at startup {}",
-                        reg.key(), amps(i), amps(s.load)
+                        "`{}` cannot start: the charging current{at} can be as low as {i}, not above the load at startup {l}",
+                        reg.key()
                     ))
                     .primary(format!("load at startup {}", amps(s.load)))
                     .help("raise the fixed or limited current, or hold the load off until the output is up (`startup { load = ... }`)");
                 out.push(diag);
             }
-            (_, Some(t)) => {
+            Ok(t) => {
                 let Some(st) = start else { continue };
                 let Some(max) = st.quantity("time_max") else {
                     continue;
                 };
-                if t > max.lo {
-                    let time =
-                        |x: f64| in_unit(x, QuantityKind::of(Dimension::TIME), max.unit.as_deref());
+                if compare::exceeds(t, max.lo) {
+                    let kind = QuantityKind::of(Dimension::TIME);
+                    let (took, need) = versus(t, max.lo, kind, max.unit.as_deref());
+                    let late = difference(t, max.lo, kind, max.unit.as_deref());
+                    let formula = if let Some(slew) = st.quantity("slew") {
+                        format!(
+                            " (a soft start of at least {}, charging {} to {} with at least {} less {} load)",
+                            in_unit(slew.lo, slew.kind, slew.unit.as_deref()),
+                            in_unit(
+                                s.capacitance,
+                                QuantityKind::of(Dimension::CAPACITANCE),
+                                None
+                            ),
+                            in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
+                            amps(s.charge_min),
+                            amps(s.load),
+                        )
+                    } else if s.charge_flat {
+                        format!(
+                            " (C·V/(I − load) = {} × {} / ({} − {}))",
+                            in_unit(
+                                s.capacitance,
+                                QuantityKind::of(Dimension::CAPACITANCE),
+                                None
+                            ),
+                            in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
+                            amps(s.charge_min),
+                            amps(s.load),
+                        )
+                    } else {
+                        format!(
+                            " (charging {} to {} with at least {} less {} load)",
+                            in_unit(
+                                s.capacitance,
+                                QuantityKind::of(Dimension::CAPACITANCE),
+                                None
+                            ),
+                            in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
+                            amps(s.charge_min),
+                            amps(s.load),
+                        )
+                    };
                     let diag = ctx
                         .at(RULE, Severity::Error, st, "time_max", format!(
-                            "`{}` takes up to {} to start (C·V/(I − load) = {} × {} / ({} − {})), above the required {}",
+                            "`{}` can take up to {took} to start{formula}, {late} over the required {need}",
                             reg.key(),
-                            time(t),
-                            in_unit(s.capacitance, QuantityKind::of(Dimension::CAPACITANCE), None),
-                            in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
-                            amps(s.charge_min.unwrap_or(0.0)),
-                            amps(s.load),
-                            time(max.lo)
                         ))
                         .primary("required startup time")
                         .help("raise the charging current, reduce the capacitance or the startup load, or relax `time_max`");
                     out.push(diag);
                 }
             }
-            _ => {}
         }
     }
 }

@@ -2,7 +2,10 @@
 //! An exact value (no tolerance, no range) in a field that feeds a worst-case
 //! derivation: supply, output, ambient, thermal resistance, capacitance,
 //! full-gate current, amplifier and clamp drive, the limit's reference,
-//! threshold, fixed and trip currents, foldback current and shutdown threshold.
+//! threshold, fixed and trip currents, foldback current and shutdown
+//! threshold. Also a sensed (`replica`) limit that states no `mismatch` or
+//! no `drain_error`: left out, each counts as an exact zero and the window
+//! comes out narrower than the circuit's.
 //!
 //! ## Why it matters
 //! Every physical value spreads. An exact number silently claims it does not,
@@ -56,6 +59,26 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             let Some((_, keys)) = WATCHED.iter().find(|(k, _)| *k == node.kind) else {
                 continue;
             };
+            if node.kind == BlockKind::Limit && node.choice("scheme") == Some("replica") {
+                for key in ["mismatch", "drain_error"] {
+                    if node.field(key).is_none() {
+                        out.push(
+                            Diagnostic::error(
+                                RULE,
+                                node.file,
+                                node.header_span.clone(),
+                                format!(
+                                    "`{}` states no `{key}`, so the window takes it as exactly zero",
+                                    node.path
+                                ),
+                            )
+                            .with_severity(Severity::Info)
+                            .primary(format!("no `{key}`"))
+                            .help(format!("state it as a spread, e.g. `{key} = ± 5 %`")),
+                        );
+                    }
+                }
+            }
             for key in *keys {
                 let Some(v) = node.quantity(key) else {
                     continue;

@@ -1,7 +1,9 @@
 //! ## What it flags
-//! A regulator that starts with neither a current limit, nor a fixed-current
-//! start, nor a soft-start ramp, where the full-gate surge at the strong
-//! corner exceeds a conductor's rating or the stated `supply_surge_max`.
+//! A regulator whose startup surge nothing but the full-gate current bounds
+//! (no sensed limit, no soft start, and no undervoltage-triggered limit
+//! with a characterised trip current), where the full-gate current at the
+//! strong corner exceeds a conductor's rating or the stated
+//! `supply_surge_max`.
 //!
 //! ## Why it matters
 //! At power-up the output is at 0 V and the amplifier drives the gate fully
@@ -25,8 +27,10 @@
 //! Add a current limit or a fixed-current start, or a soft start (`slew`)
 //! whose C·dV/dt plus load stays under the limits.
 
+use crate::compare;
 use crate::context::Context;
-use crate::format::in_unit;
+use crate::derive::Scheme;
+use crate::format::{in_unit, versus};
 use guardband_model::{BlockKind, Diagnostic, Severity};
 use guardband_units::QuantityKind;
 
@@ -34,7 +38,8 @@ const RULE: &str = "unlimited-surge";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
-        if !d.limits.is_empty() {
+        let Ok(worst) = &d.worst else { continue };
+        if !worst.unlimited {
             continue;
         }
         let reg = ctx.node(d.regulator);
@@ -42,35 +47,34 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         if start.and_then(|s| s.field("slew")).is_some() {
             continue;
         }
-        let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else {
-            continue;
-        };
-        let Some(full_gate) = pass.quantity("full_gate_current") else {
-            continue;
-        };
-        let surge = full_gate.hi;
-        let show = |x: f64| in_unit(x, QuantityKind::CURRENT, full_gate.unit.as_deref());
-        let mut over: Vec<(String, f64, guardband_model::FileId, std::ops::Range<usize>)> =
-            Vec::new();
+        let pass = ctx.node(worst.cause.node);
+        let surge = worst.value;
+        let unit = worst.unit.as_deref();
+        let mut over: Vec<(
+            String,
+            String,
+            guardband_model::FileId,
+            std::ops::Range<usize>,
+        )> = Vec::new();
         if let Some(s) = start
             && let Some(max) = s.quantity("supply_surge_max")
-            && surge > max.hi
+            && compare::exceeds(surge, max.lo)
         {
             over.push((
                 "the supply surge limit".into(),
-                max.hi,
+                versus(surge, max.lo, QuantityKind::CURRENT, unit).1,
                 s.file,
                 ctx.value_span(s, "supply_surge_max"),
             ));
         }
         for cr in &d.conductors {
-            if let Ok(r) = cr.rating
-                && surge > r
+            if let (Ok(r), Ok(i)) = (&cr.rating, &cr.current)
+                && compare::exceeds(*i, *r)
             {
                 let c = ctx.node(cr.node);
                 over.push((
                     format!("conductor `{}`", c.key()),
-                    r,
+                    versus(*i, *r, QuantityKind::CURRENT, unit).1,
                     c.file,
                     c.header_span.clone(),
                 ));
@@ -83,28 +87,42 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             .rated_load
             .map(|r| format!(" ({}× rated load)", crate::format::number(surge / r)))
             .unwrap_or_default();
+        let uv = d
+            .limits
+            .iter()
+            .find(|l| l.scheme == Scheme::UndervoltageFixed)
+            .map(|l| ctx.node(l.node).key());
+        let opening = match uv {
+            Some(name) => format!(
+                "`{}` starts with nothing to bound the current above the `{name}` threshold (no `trip_current`)",
+                reg.key()
+            ),
+            None => format!("`{}` starts with no limit", reg.key()),
+        };
         let mut diag = ctx
             .at(
                 RULE,
                 Severity::Error,
                 pass,
-                "full_gate_current",
+                worst.cause.key,
                 format!(
-                    "`{}` starts with no limit: the full-gate surge of {}{rated} exceeds {}",
-                    reg.key(),
-                    show(surge),
+                    "{opening}: the full-gate surge of {}{rated} exceeds {}",
+                    in_unit(surge, QuantityKind::CURRENT, unit),
                     over.iter()
-                        .map(|(what, r, ..)| format!("{what} ({})", show(*r)))
+                        .map(|(what, r, ..)| format!("{what} ({r})"))
                         .collect::<Vec<_>>()
                         .join(", ")
                 ),
             )
-            .primary(format!("strong-corner full-gate current {}", show(surge)));
+            .primary(format!(
+                "strong-corner full-gate current {}",
+                in_unit(surge, QuantityKind::CURRENT, unit)
+            ));
         for (what, r, file, span) in &over {
-            diag = diag.label(*file, span.clone(), format!("{what}: {}", show(*r)));
+            diag = diag.label(*file, span.clone(), format!("{what}: {r}"));
         }
         out.push(diag.help(
-            "add a current limit, a fixed-current start or a soft start (`startup { slew = ... }`)",
+            "add a current limit, a fixed-current start with a characterised trip current, or a soft start (`startup { slew = ... }`)",
         ));
     }
 }

@@ -1,0 +1,140 @@
+//! Heat in the pass device when the output is held below regulation: in a
+//! hard short (output at 0 V) and at the worst point of a partial short or
+//! overload, where `(Vin,max − V)·I(V)` peaks. The junction follows from
+//! T_J = T_A,max + P·θJA,max (textbook relation).
+
+use super::current::Currents;
+use super::envelope;
+use super::unknown::{Figure, both, need};
+use crate::physics::thermal;
+use guardband_model::{BlockKind, Model, Node};
+use uom::si::f64 as q;
+
+/// Dissipation and junction temperature at one output voltage.
+#[derive(Debug, Clone)]
+pub struct Heat {
+    /// The output voltage at which this figure holds, V.
+    pub at_voltage: f64,
+    /// The current there (its upper bound), A.
+    pub current: f64,
+    /// What sets that current, in words.
+    pub reason: String,
+    /// Upper bound of the dissipation, W.
+    pub power: f64,
+    /// Upper bound of the junction temperature, K.
+    pub junction: f64,
+    /// Lower bound of the junction temperature, K, when the current is bounded below.
+    pub junction_lo: Option<f64>,
+    /// The inputs used: maximum supply (V), maximum ambient (K), maximum θJA (K/W).
+    pub supply: f64,
+    pub ambient: f64,
+    pub theta: f64,
+}
+
+/// The thermal inputs a regulator states.
+struct Inputs {
+    supply: (f64, f64),
+    ambient: (f64, f64),
+    theta: (f64, f64),
+}
+
+fn inputs(reg: &Node) -> Figure<Inputs> {
+    let ((supply, ambient), theta) = both(
+        both(need(reg, "supply"), need(reg, "ambient")),
+        need(reg, "theta_ja"),
+    )?;
+    Ok(Inputs {
+        supply: (supply.lo, supply.hi),
+        ambient: (ambient.lo, ambient.hi),
+        theta: (theta.lo, theta.hi),
+    })
+}
+
+fn junction(ambient: f64, power: f64, theta: f64) -> f64 {
+    thermal::junction_temperature(
+        q::ThermodynamicTemperature::new::<uom::si::thermodynamic_temperature::kelvin>(ambient),
+        q::Power::new::<uom::si::power::watt>(power),
+        q::ThermalResistance::new::<uom::si::thermal_resistance::kelvin_per_watt>(theta),
+    )
+    .value
+}
+
+fn dissipation(volts: f64, amps: f64) -> f64 {
+    thermal::short_dissipation(
+        q::ElectricPotential::new::<uom::si::electric_potential::volt>(volts),
+        q::ElectricCurrent::new::<uom::si::electric_current::ampere>(amps),
+    )
+    .value
+}
+
+/// The hard short (output at 0 V) and the worst point over the output range.
+pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<Heat>) {
+    let both_inputs = both(inputs(reg), currents.as_ref().map_err(Clone::clone));
+    let (inp, c) = match both_inputs {
+        Ok(x) => x,
+        Err(u) => return (Err(u.clone()), Err(u)),
+    };
+    let (vin_lo, vin) = inp.supply;
+    let (ta_lo, ta) = inp.ambient;
+    let (theta_lo, theta) = inp.theta;
+    let short = c.upper_at(0.0).map(|(i, cause)| {
+        let power = dissipation(vin, i);
+        Heat {
+            at_voltage: 0.0,
+            current: i,
+            reason: cause.what.clone(),
+            power,
+            junction: junction(ta, power, theta),
+            junction_lo: c
+                .lower_at(0.0)
+                .map(|lo| junction(ta_lo, dissipation(vin_lo, lo), theta_lo)),
+            supply: vin,
+            ambient: ta,
+            theta,
+        }
+    });
+    let worst = envelope::hottest(&c.upper, vin).map(|(power, v, i, by)| Heat {
+        at_voltage: v,
+        current: i,
+        reason: c.cause(by).what.clone(),
+        power,
+        junction: junction(ta, power, theta),
+        junction_lo: None,
+        supply: vin,
+        ambient: ta,
+        theta,
+    });
+    let missing = || super::unknown::Unknown::because("the current is not bounded");
+    (short.ok_or_else(missing), worst.ok_or_else(missing))
+}
+
+/// The hottest the die gets in a fault, K, and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FaultTemperature {
+    pub kelvin: f64,
+    pub why: &'static str,
+}
+
+/// The hottest the die gets in a fault: the worst junction temperature,
+/// held down by a thermal shutdown at the top of its threshold when there
+/// is one (the die then cycles below it). Unknown when neither is known.
+pub fn fault_temperature(
+    model: &Model,
+    reg: &Node,
+    worst: &Figure<Heat>,
+) -> Figure<FaultTemperature> {
+    let shutdown = model
+        .child(reg, BlockKind::ThermalShutdown)
+        .and_then(|t| t.quantity("threshold"))
+        .map(|t| t.hi);
+    let at = |kelvin, why| Ok(FaultTemperature { kelvin, why });
+    match (worst, shutdown) {
+        (Ok(h), Some(t)) if t < h.junction => at(
+            t,
+            "the thermal shutdown's highest trip point, below the worst junction",
+        ),
+        (Ok(h), _) => at(h.junction, "the worst junction in a short or overload"),
+        (Err(_), Some(t)) => at(t, "the thermal shutdown's highest trip point"),
+        (Err(u), None) => Err(u.clone()),
+    }
+}

@@ -1,0 +1,164 @@
+//! Derivations per regulator: limit windows (worst case and statistical),
+//! the currents the protections let through at each output voltage, the
+//! worst current, conductor ratings, startup, and heat in shorts and
+//! overloads. Every figure is a bound over every corner the spec admits;
+//! a figure whose inputs are missing or in error is [`Unknown`], never a
+//! default. The rules read these; hovers and the report show them through
+//! [`view`].
+
+pub mod conductor;
+pub mod current;
+pub mod envelope;
+pub mod heat;
+pub mod startup;
+pub mod statistics;
+pub mod unknown;
+pub mod view;
+pub mod window;
+
+pub use conductor::{Carries, ConductorKind, ConductorRating, Unrated};
+pub use current::{Cause, Currents, WorstCurrent};
+pub use heat::{FaultTemperature, Heat};
+pub use startup::Startup;
+pub use statistics::{
+    Contributor, RangeMode, StatSettings, Statistical, escape_ppm, sigmas_below, statistical,
+};
+pub use unknown::{Figure, Need, Unknown};
+pub use window::{LimitWindow, Scheme, UnreadLimit};
+
+use crate::config::Config;
+use guardband_model::{BlockKind, Model, Node, NodeId};
+
+/// Everything derived for one regulator.
+#[derive(Debug, Clone)]
+pub struct Derived {
+    pub regulator: NodeId,
+    /// The top of `load`, A; `None` when `load` is not known.
+    pub rated_load: Option<f64>,
+    pub load_unit: Option<String>,
+    /// Required margin of a limit's low edge above rated load, a fraction.
+    pub margin: f64,
+    pub limits: Vec<LimitWindow>,
+    pub unread_limits: Vec<UnreadLimit>,
+    pub currents: Figure<Currents>,
+    pub worst: Figure<WorstCurrent>,
+    /// The output shorted to ground (0 V).
+    pub short: Figure<Heat>,
+    /// The worst point of a partial short or overload.
+    pub overload: Figure<Heat>,
+    /// The hottest the die gets in a fault.
+    pub fault_temperature: Figure<FaultTemperature>,
+    pub startup: Figure<Startup>,
+    pub conductors: Vec<ConductorRating>,
+}
+
+impl Derived {
+    /// Rated load times one plus the margin, the level a limit must stay above.
+    pub fn required(&self) -> Option<f64> {
+        self.rated_load.map(|r| r * (1.0 + self.margin))
+    }
+
+    /// The window of one limit.
+    pub fn limit(&self, node: NodeId) -> Option<&LimitWindow> {
+        self.limits.iter().find(|l| l.node == node)
+    }
+
+    /// The rating of one conductor.
+    pub fn conductor(&self, node: NodeId) -> Option<&ConductorRating> {
+        self.conductors.iter().find(|c| c.node == node)
+    }
+}
+
+/// The statistical settings of a configuration.
+pub fn stat_settings(config: &Config) -> StatSettings {
+    StatSettings {
+        sigma: config.sigma,
+        ranges: config.ranges,
+    }
+}
+
+/// Derives every figure for one regulator.
+pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
+    let settings = stat_settings(config);
+    let (limits, unread_limits) = window::limit_windows(model, reg, &settings);
+    let currents = current::currents(model, reg, &limits, &unread_limits);
+    let worst = currents
+        .as_ref()
+        .map_err(Clone::clone)
+        .and_then(|c| current::worst_current(model, reg, c));
+    let (short, overload) = heat::heat(reg, &currents);
+    let fault_temperature = heat::fault_temperature(model, reg, &overload);
+    let startup = startup::startup(model, reg, &currents);
+    let inputs = conductor::RatingInputs {
+        model,
+        reg,
+        config,
+        worst: &worst,
+        fault_temperature: &fault_temperature,
+    };
+    let conductors = model
+        .children(reg, BlockKind::Conductor)
+        .map(|c| conductor::rate(&inputs, c))
+        .collect();
+    let load = reg.quantity("load");
+    Derived {
+        regulator: reg.id,
+        rated_load: load.map(|l| l.hi),
+        load_unit: load.and_then(|l| l.unit.as_deref().map(str::to_string)),
+        margin: reg
+            .quantity("margin")
+            .map(|m| m.nom)
+            .unwrap_or(config.margin),
+        limits,
+        unread_limits,
+        currents,
+        worst,
+        short,
+        overload,
+        fault_temperature,
+        startup,
+        conductors,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use guardband_model::{SourceId, Value};
+    use guardband_units::QuantityKind;
+
+    fn one_plus(v: &Value) -> Value {
+        Value::exact(QuantityKind::NONE, 1.0).add(v).unwrap()
+    }
+
+    // Rule of thumb (common practice, no source): an on-chip resistor spread
+    // of ±15..20 % plus mirror mismatch gives a limit spread of about ±30..50 %.
+    #[test]
+    fn resistor_plus_mismatch_spread_is_thirty_to_fifty_percent() {
+        for (resistor, mismatch) in [(0.15, 0.15), (0.20, 0.25)] {
+            let reference = Value::exact(QuantityKind::CURRENT, 45e-6)
+                .with_tolerance(QuantityKind::NONE, resistor, resistor, SourceId(0))
+                .unwrap();
+            let m = Value::spread(QuantityKind::NONE, mismatch, mismatch, SourceId(1));
+            let w = reference.mul(&one_plus(&m)).unwrap();
+            let spread = (w.hi - w.nom) / w.nom;
+            assert!((0.30..=0.50).contains(&spread), "spread {spread}");
+        }
+    }
+
+    // Rule of thumb (common practice, no source): a limit centred at 1.5x
+    // rated load with a ±30..50 % spread reaches about 2..2.25x at its top, and
+    // metal must be sized for the top edge, about 2.5..3x rated once the
+    // ratio and drain-voltage errors are added.
+    #[test]
+    fn limit_top_needs_metal_well_above_rated() {
+        let rated = 0.15;
+        let nominal = 1.5 * rated;
+        for spread in [0.67, 1.0] {
+            let top = nominal * (1.0 + spread);
+            assert!(
+                (2.5 * rated..=3.0 * rated + 1e-12).contains(&top),
+                "top {top}"
+            );
+        }
+    }
+}

@@ -1,0 +1,406 @@
+//! The derived figures as labelled rows: the one place they are worded.
+//! Hovers, inlay hints and the report render these rows, so a new figure
+//! touches its derivation and this view only, and a reviewer reads the
+//! same numbers in the editor and in the report.
+
+use super::{Carries, Derived, Scheme, escape_ppm, sigmas_below};
+use crate::config::Config;
+use crate::format::{bounds, in_unit, number, percent, ppm};
+use guardband_model::{FileId, Model, NodeId};
+use guardband_units::{Dimension, QuantityKind};
+
+/// What a row shows, for charts and for picking rows per block.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    RatedLoad,
+    Margin,
+    LimitWorstCase,
+    LimitStatistical,
+    Escape,
+    Trip,
+    FullGate,
+    WorstCurrent,
+    ShortCurrent,
+    ShortHeat,
+    OverloadHeat,
+    FaultTemperature,
+    StartupSurge,
+    StartupTime,
+    ConductorRating,
+    NotDerived,
+}
+
+/// One derived figure, worded.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Row {
+    /// The block the figure belongs to.
+    pub node: NodeId,
+    pub role: Role,
+    pub label: String,
+    pub value: String,
+    /// For current figures: the range in A, for charts.
+    pub current: Option<(f64, f64)>,
+    /// How it was found, in words (may be empty).
+    pub basis: String,
+    /// Further lines: contributors, inputs used.
+    pub details: Vec<String>,
+    /// Where its inputs are written, for editors.
+    pub sources: Vec<(FileId, std::ops::Range<usize>)>,
+}
+
+fn row(node: NodeId, role: Role, label: impl Into<String>, value: impl Into<String>) -> Row {
+    Row {
+        node,
+        role,
+        label: label.into(),
+        value: value.into(),
+        current: None,
+        basis: String::new(),
+        details: Vec::new(),
+        sources: Vec::new(),
+    }
+}
+
+fn amps(x: f64, unit: Option<&str>) -> String {
+    in_unit(x, QuantityKind::CURRENT, unit)
+}
+
+fn celsius(k: f64) -> String {
+    in_unit(k, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C"))
+}
+
+fn volts(v: f64) -> String {
+    in_unit(v, QuantityKind::VOLTAGE, Some("V"))
+}
+
+/// Every derived figure of one regulator, in reading order.
+pub fn rows(model: &Model, d: &Derived, config: &Config) -> Vec<Row> {
+    let reg = d.regulator;
+    let unit = d.load_unit.as_deref();
+    let mut out = Vec::new();
+    let not_derived = |node: NodeId, label: &str, why: &super::Unknown| {
+        let mut r = row(
+            node,
+            Role::NotDerived,
+            label,
+            format!("not derived: {}", why.describe(model)),
+        );
+        r.basis = "an input is missing or has an error".into();
+        r
+    };
+    if let Some(load) = d.rated_load {
+        let mut r = row(reg, Role::RatedLoad, "rated load", amps(load, unit));
+        r.current = Some((0.0, load));
+        out.push(r);
+        if let Some(req) = d.required() {
+            let mut r = row(
+                reg,
+                Role::Margin,
+                format!("rated load + {} margin", percent(d.margin)),
+                amps(req, unit),
+            );
+            r.current = Some((load, req));
+            out.push(r);
+        }
+    }
+    for lw in &d.limits {
+        let name = model.node(lw.node).key();
+        match &lw.window {
+            Ok(w) => {
+                let what = match lw.scheme {
+                    Scheme::Replica => "limit window",
+                    Scheme::UndervoltageFixed => "fixed current",
+                };
+                let mut r = row(
+                    lw.node,
+                    Role::LimitWorstCase,
+                    format!("`{name}` {what}, worst case"),
+                    bounds(w),
+                );
+                r.current = Some((w.lo, w.hi));
+                r.basis = format!("bounds by {}", w.bounds.describe());
+                out.push(r);
+                if let Some(stat) = &lw.stat {
+                    let u = w.unit.as_deref().or(unit);
+                    let mut r = row(
+                        lw.node,
+                        Role::LimitStatistical,
+                        format!("`{name}` {what}, statistical ({} σ)", number(stat.k)),
+                        format!(
+                            "{} .. {} (mean {})",
+                            amps(stat.lo, u),
+                            amps(stat.hi, u),
+                            amps(stat.mean, u)
+                        ),
+                    );
+                    r.current = Some((stat.lo, stat.hi));
+                    r.basis = match config.ranges {
+                        super::RangeMode::Uniform => "root-sum-square; each ± at its own σ (default the configured sigma), each range as uniform".into(),
+                        super::RangeMode::Bound => "root-sum-square of the tolerances; ranges added as bounds".into(),
+                    };
+                    for c in &stat.contributors {
+                        let src = model.source(c.source);
+                        r.details.push(format!(
+                            "`{}` {}: {} of the variance",
+                            src.label(model),
+                            match src.spread {
+                                guardband_model::Spread::Range => "(a range)".to_string(),
+                                guardband_model::Spread::Normal(Some(k)) =>
+                                    format!("(± at {} σ)", number(k)),
+                                guardband_model::Spread::Normal(None) =>
+                                    format!("(± at {} σ)", number(config.sigma)),
+                            },
+                            percent(c.share)
+                        ));
+                        r.sources.push((src.file, src.span.clone()));
+                    }
+                    out.push(r);
+                    if lw.scheme == Scheme::Replica
+                        && let (Some(load), Some(req)) = (d.rated_load, d.required())
+                    {
+                        let clears = w.lo - req;
+                        let verdict = if crate::compare::below(w.lo, req) {
+                            format!("misses it by {}", amps(-clears, u))
+                        } else {
+                            format!("clears it by {}", amps(clears, u))
+                        };
+                        let mut r = row(
+                            lw.node,
+                            Role::Escape,
+                            format!("`{name}` against rated load + margin"),
+                            format!(
+                                "low edge {verdict}; {} of parts trip below it",
+                                ppm(escape_ppm(stat, req), sigmas_below(stat, req))
+                            ),
+                        );
+                        r.basis = format!(
+                            "rated {} + {} margin = {}",
+                            amps(load, u),
+                            percent(d.margin),
+                            amps(req, u)
+                        );
+                        out.push(r);
+                    }
+                }
+            }
+            Err(u) => out.push(not_derived(lw.node, &format!("`{name}` window"), u)),
+        }
+        match &lw.trip {
+            Ok(Some(t)) => {
+                let mut r = row(lw.node, Role::Trip, format!("`{name}` characterised trip"), bounds(t));
+                r.current = Some((t.lo, t.hi));
+                out.push(r);
+            }
+            Ok(None) if lw.scheme == Scheme::UndervoltageFixed => out.push(row(
+                lw.node,
+                Role::Trip,
+                format!("`{name}` characterised trip"),
+                "not stated: nothing but the full-gate current bounds the current above the threshold",
+            )),
+            _ => {}
+        }
+    }
+    for u in &d.unread_limits {
+        out.push(not_derived(
+            u.node,
+            &format!("`{}` window", model.node(u.node).key()),
+            &u.why,
+        ));
+    }
+    if let Some(pass) = model.child(model.node(reg), guardband_model::BlockKind::Pass)
+        && let Some(fg) = pass.quantity("full_gate_current")
+    {
+        let mut r = row(
+            pass.id,
+            Role::FullGate,
+            "full-gate current (weak .. strong corner)",
+            bounds(fg),
+        );
+        r.current = Some((fg.lo, fg.hi));
+        out.push(r);
+    }
+    match &d.worst {
+        Ok(w) => {
+            let mut r = row(
+                reg,
+                Role::WorstCurrent,
+                "worst current through the output path",
+                amps(w.value, unit),
+            );
+            r.current = Some((0.0, w.value));
+            r.basis = format!("{}, at an output of {}", w.cause.what, volts(w.at_voltage));
+            out.push(r);
+        }
+        Err(u) => out.push(not_derived(reg, "worst current", u)),
+    }
+    if let Ok(c) = &d.currents
+        && let Some((hi, cause)) = c.upper_at(0.0)
+    {
+        let lo = c.lower_at(0.0);
+        let mut r = row(
+            reg,
+            Role::ShortCurrent,
+            "current with the output shorted (0 V)",
+            match lo {
+                Some(lo) => format!("{} .. {}", amps(lo, unit), amps(hi, unit)),
+                None => format!("up to {}", amps(hi, unit)),
+            },
+        );
+        r.current = Some((lo.unwrap_or(0.0), hi));
+        r.basis = cause.what.clone();
+        out.push(r);
+    }
+    for (heat, role, label) in [
+        (&d.short, Role::ShortHeat, "sustained short (0 V)"),
+        (
+            &d.overload,
+            Role::OverloadHeat,
+            "worst partial short or overload",
+        ),
+    ] {
+        match heat {
+            Ok(h) => {
+                let mut r = row(
+                    reg,
+                    role,
+                    format!("{label}: junction"),
+                    format!(
+                        "{} at {} dissipated",
+                        celsius(h.junction),
+                        in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
+                    ),
+                );
+                r.basis = format!(
+                    "T_A + (Vin − V)·I·θJA = {} + ({} − {}) × {} × {}",
+                    celsius(h.ambient),
+                    volts(h.supply),
+                    volts(h.at_voltage),
+                    amps(h.current, unit),
+                    in_unit(
+                        h.theta,
+                        QuantityKind::of(Dimension::THERMAL_RESISTANCE),
+                        None
+                    )
+                );
+                r.details.push(format!("the current there is {}", h.reason));
+                out.push(r);
+            }
+            Err(u) => out.push(not_derived(reg, &format!("{label}: junction"), u)),
+        }
+    }
+    match &d.fault_temperature {
+        Ok(t) => {
+            let mut r = row(
+                reg,
+                Role::FaultTemperature,
+                "die temperature in a fault",
+                celsius(t.kelvin),
+            );
+            r.basis = t.why.to_string();
+            out.push(r);
+        }
+        Err(u) => out.push(not_derived(reg, "die temperature in a fault", u)),
+    }
+    match &d.startup {
+        Ok(s) => {
+            let mut r = row(
+                reg,
+                Role::StartupSurge,
+                "startup surge",
+                amps(s.surge, unit),
+            );
+            r.current = Some((0.0, s.surge));
+            r.basis = s.surge_reason.clone();
+            out.push(r);
+            let time = match (s.time, s.time_lo) {
+                (Ok(t), Some(lo)) => format!(
+                    "{} .. {}",
+                    in_unit(lo, QuantityKind::of(Dimension::TIME), Some("us")),
+                    in_unit(t, QuantityKind::of(Dimension::TIME), Some("us"))
+                ),
+                (Ok(t), None) => format!(
+                    "up to {}",
+                    in_unit(t, QuantityKind::of(Dimension::TIME), Some("us"))
+                ),
+                (Err(v), _) => format!(
+                    "never starts: the charging current does not exceed the load at {}",
+                    volts(v)
+                ),
+            };
+            let mut r = row(reg, Role::StartupTime, "startup time", time);
+            r.basis = format!(
+                "charge {} to {} with at least {} less {} load",
+                in_unit(
+                    s.capacitance,
+                    QuantityKind::of(Dimension::CAPACITANCE),
+                    Some("uF")
+                ),
+                volts(s.voltage),
+                amps(s.charge_min, unit),
+                amps(s.load, unit)
+            );
+            out.push(r);
+        }
+        Err(u) => out.push(not_derived(reg, "startup", u)),
+    }
+    for c in &d.conductors {
+        let name = model.node(c.node).key();
+        let mut r = match &c.rating {
+            Ok(rating) => {
+                let mut r = row(
+                    c.node,
+                    Role::ConductorRating,
+                    format!("conductor `{name}` rating"),
+                    amps(*rating, unit),
+                );
+                r.current = Some((0.0, *rating));
+                r.basis = c.basis.clone();
+                if let Ok(i) = c.current {
+                    let margin = rating / i - 1.0;
+                    r.value = format!(
+                        "{} against the worst current {} ({} {})",
+                        amps(*rating, unit),
+                        amps(i, unit),
+                        if margin < 0.0 { "short by" } else { "margin" },
+                        percent(margin.abs())
+                    );
+                }
+                r
+            }
+            Err(un) => not_derived(c.node, &format!("conductor `{name}` rating"), &un.why),
+        };
+        if let Some(f) = &c.formula {
+            r.details.insert(0, f.clone());
+        }
+        match c.carries {
+            Carries::OutputPath(n) => r.details.push(format!(
+                "carries `{}`: the output-path current",
+                model.node(n).key()
+            )),
+            Carries::Branch { limit, ratio_lo } => r.details.push(format!(
+                "carries the `{}` replica branch: 1/{} of the output-path current",
+                model.node(limit).key(),
+                number(ratio_lo)
+            )),
+            Carries::Unstated => r.details.push(
+                "`carries` not stated: the output-path current (the most that flows) is assumed"
+                    .into(),
+            ),
+        }
+        if let Some((t, why)) = &c.temperature {
+            r.details.push(format!("rated at {} ({why})", celsius(*t)));
+        }
+        if let Some(f) = c.derating_factor {
+            r.details
+                .push(format!("Black's-equation factor ×{}", number(f)));
+        }
+        if let Some(res) = c.resistance {
+            r.details.push(format!(
+                "resistance at temperature {}",
+                in_unit(res, QuantityKind::of(Dimension::RESISTANCE), None)
+            ));
+        }
+        out.push(r);
+    }
+    out
+}
