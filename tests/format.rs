@@ -21,7 +21,7 @@ fn guard_files(dir: &Path, out: &mut Vec<PathBuf>) {
 /// Every field's value and every finding, without positions.
 fn meaning(path: &Path, text: &str) -> (Vec<String>, Vec<String>) {
     let root = path.parent().expect("parent").to_path_buf();
-    let read = |p: &Path| -> std::io::Result<Vec<u8>> {
+    let read = |p: &Path, _limit: usize| -> std::io::Result<Vec<u8>> {
         if p == path {
             Ok(text.as_bytes().to_vec())
         } else {
@@ -113,4 +113,76 @@ fn fmt_check_reports_and_fmt_rewrites_and_broken_files_are_left_alone() {
         std::fs::read_to_string(dir.join("broken.guard")).expect("read"),
         "regulator r {\n  load = \n"
     );
+}
+
+/// The fixture files of the rules that fail, with their text.
+fn failing_fixtures() -> Vec<(PathBuf, String)> {
+    let mut files = Vec::new();
+    guard_files(&root().join("tests/fixtures/rules"), &mut files);
+    files.sort();
+    files
+        .into_iter()
+        .filter(|p| {
+            p.file_name()
+                .is_some_and(|n| n.to_string_lossy().starts_with("fail"))
+        })
+        .map(|p| {
+            let text = std::fs::read_to_string(&p).expect("read");
+            (p.canonicalize().expect("canonical"), text)
+        })
+        .collect()
+}
+
+/// `text` with a waiver of `rule` after token `at`: on a line of its own
+/// (before the next token) or trailing the token's line.
+fn with_waiver(text: &str, at: usize, rule: &str, own_line: bool) -> String {
+    let (tokens, _) = guardband_syntax::lex(text);
+    let Some((_, span)) = tokens.get(at % tokens.len().max(1)) else {
+        return text.to_string();
+    };
+    let waiver = format!("// waive {rule}: kept across formatting");
+    let mut out = text[..span.end].to_string();
+    if own_line {
+        out.push('\n');
+        out.push_str(&waiver);
+        out.push('\n');
+    } else {
+        out.push_str("  ");
+        out.push_str(&waiver);
+        out.push('\n');
+    }
+    out.push_str(&text[span.end..]);
+    out
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig {
+        cases: 96,
+        rng_seed: proptest::test_runner::RngSeed::Fixed(7),
+        failure_persistence: None,
+        ..proptest::prelude::ProptestConfig::default()
+    })]
+
+    /// Formatting never changes what a waiver waives: the findings,
+    /// waived or not, and the waivers that waive nothing, are the same
+    /// before and after.
+    #[test]
+    fn formatting_keeps_what_waivers_waive(
+        pick in 0usize..1000,
+        waivers in proptest::collection::vec((0usize..400, proptest::bool::ANY), 1..4),
+    ) {
+        let fixtures = failing_fixtures();
+        let (path, text) = &fixtures[pick % fixtures.len()];
+        let rule = path.parent().and_then(|p| p.file_name()).map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+        let mut waived = text.clone();
+        for (at, own_line) in waivers {
+            waived = with_waiver(&waived, at, &rule, own_line);
+        }
+        let Some(formatted) = guardband_syntax::format::format(&waived) else {
+            return Ok(());
+        };
+        let (_, before) = meaning(path, &waived);
+        let (_, after) = meaning(path, &formatted);
+        proptest::prop_assert_eq!(before, after, "{}\n---\n{}", waived, formatted);
+    }
 }

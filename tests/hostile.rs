@@ -17,7 +17,7 @@ fn check_text(dir: &Path, name: &str, text: Vec<u8>) -> usize {
     std::thread::Builder::new()
         .stack_size(256 * 1024 * 1024)
         .spawn(move || {
-            let read = |p: &Path| -> std::io::Result<Vec<u8>> {
+            let read = |p: &Path, _limit: usize| -> std::io::Result<Vec<u8>> {
                 if p == path {
                     Ok(text.clone())
                 } else {

@@ -1008,3 +1008,123 @@ fn configuration_problems_are_published_on_guardband_toml() {
     assert_eq!(published[0]["range"]["start"]["line"], 0);
     assert_eq!(client.stop(), Some(0));
 }
+
+/// After each kind of broken frame the server still answers the next request.
+#[test]
+fn bad_frames_never_end_the_session() {
+    let dir = temp_dir("lsp-frames");
+    let mut client = start(&dir, json!({}));
+    let body = br#"{"jsonrpc":"2.0","id":99001,"method":"guardband/noSuchMethod"}"#;
+    let broken: Vec<Vec<u8>> = vec![
+        // Too short, too long, negative, far too large, 2^64, no header at all.
+        [
+            format!("Content-Length: {}\r\n\r\n", body.len() - 7).as_bytes(),
+            body,
+        ]
+        .concat(),
+        [
+            format!("Content-Length: {}\r\n\r\n", body.len() + 300).as_bytes(),
+            body,
+        ]
+        .concat(),
+        [b"Content-Length: -3\r\n\r\n".as_slice(), body].concat(),
+        [b"Content-Length: 1000000000000\r\n\r\n".as_slice(), body].concat(),
+        [
+            b"Content-Length: 18446744073709551616\r\n\r\n".as_slice(),
+            body,
+        ]
+        .concat(),
+        body.to_vec(),
+    ];
+    for bytes in broken {
+        client.send_raw(&bytes);
+        let answer = client.request_full("guardband/noSuchMethod", json!({}));
+        assert_eq!(
+            answer["error"]["code"],
+            -32601,
+            "no answer after {}",
+            String::from_utf8_lossy(&bytes)
+        );
+    }
+    assert_eq!(client.stop(), Some(0));
+}
+
+/// An `untitled:` buffer, or a file in a folder that does not exist, is
+/// checked on its own: diagnostics arrive and hover answers.
+#[test]
+fn documents_without_a_folder_are_checked_on_their_own() {
+    let dir = temp_dir("lsp-untitled");
+    let mut client = start(&dir, json!({}));
+    let text = "regulator r {\n    load = 0 mA .. 2 V\n}\n";
+    for u in ["untitled:Untitled-1", "file:///no/such/folder/draft.guard"] {
+        client.open(u, text, 1);
+        let diags = client.diagnostics(u, 1);
+        assert!(
+            diags.iter().any(|d| d["code"] == "unit-mismatch"),
+            "{u}: {diags:?}"
+        );
+        let hover = client.request_full(
+            "textDocument/hover",
+            json!({ "textDocument": { "uri": u }, "position": { "line": 1, "character": 5 } }),
+        );
+        assert!(hover.get("error").is_none(), "{u}: {hover}");
+    }
+    assert_eq!(client.stop(), Some(0));
+}
+
+/// A quick fix that rewrites a value keeps the comments written inside it.
+#[test]
+fn quick_fixes_keep_the_comments_inside_what_they_rewrite() {
+    let dir = temp_dir("lsp-fix-comments");
+    std::fs::copy(
+        root().join("tests/fixtures/rules/conductor-under-rated/fail.guard"),
+        dir.join("c.guard"),
+    )
+    .expect("copy");
+    let path = dir.join("c.guard");
+    let original = std::fs::read_to_string(&path).expect("read");
+    let text = original.replace(
+        "width = 50 um",
+        "width = (50 um  // sized for the rated load\n            )",
+    );
+    assert_ne!(text, original, "the fixture still has its 50 um width");
+    std::fs::write(&path, &text).expect("write");
+    let u = uri(&path.canonicalize().expect("canonical"));
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let diags = client.diagnostics(&u, 1);
+    let d = diags
+        .iter()
+        .find(|d| d["code"] == "conductor-under-rated")
+        .expect("finding")
+        .clone();
+    let actions = client.request(
+        "textDocument/codeAction",
+        json!({ "textDocument": doc(&u), "range": d["range"], "context": { "diagnostics": [d] } }),
+    );
+    let fix = actions
+        .as_array()
+        .expect("actions")
+        .iter()
+        .find(|a| {
+            a["title"]
+                .as_str()
+                .is_some_and(|t| t.starts_with("Set `width`"))
+        })
+        .expect("a width fix")
+        .clone();
+    let fixed = apply(
+        &text,
+        fix["edit"]["changes"][u.as_str()]
+            .as_array()
+            .expect("edits"),
+    );
+    assert!(fixed.contains("// sized for the rated load"), "{fixed}");
+    std::fs::write(&path, &fixed).expect("write");
+    let (_, report) = check_json(&dir, &["c.guard"]);
+    assert!(
+        !report.to_string().contains("conductor-under-rated"),
+        "the fix still fixes: {report}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}

@@ -22,7 +22,7 @@ fuzz_target!(|data: &[u8]| {
     let root = root();
     let spec = root.join("spec.guard");
     let process = root.join("p.guard");
-    let read = |p: &Path| -> std::io::Result<Vec<u8>> {
+    let read = |p: &Path, _limit: usize| -> std::io::Result<Vec<u8>> {
         if p == spec {
             Ok(data.to_vec())
         } else if p == process {

@@ -4,7 +4,7 @@
 
 use guardband_lsp::documents::Documents;
 use guardband_lsp::encoding::Encoding;
-use guardband_lsp::transport::{Frame, read_frame};
+use guardband_lsp::transport::{Frame, FrameReader};
 use libfuzzer_sys::fuzz_target;
 use tower_lsp_server::ls_types::{Position, Range, TextDocumentContentChangeEvent, Uri};
 
@@ -14,9 +14,9 @@ fuzz_target!(|data: &[u8]| {
         .build()
         .expect("runtime");
     runtime.block_on(async {
-        let mut reader = tokio::io::BufReader::new(data);
+        let mut reader = FrameReader::new(data);
         let mut frames = 0;
-        while let Ok(Some(frame)) = read_frame(&mut reader).await {
+        while let Ok(Some(frame)) = reader.next().await {
             frames += 1;
             assert!(frames <= data.len() + 1, "no progress");
             if let Frame::Bad { code, .. } = frame {

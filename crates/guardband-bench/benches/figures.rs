@@ -61,7 +61,7 @@ fn full_check(
     files: &HashMap<PathBuf, Vec<u8>>,
     threads: usize,
 ) -> usize {
-    let read = |p: &Path| -> std::io::Result<Vec<u8>> {
+    let read = |p: &Path, _limit: usize| -> std::io::Result<Vec<u8>> {
         files
             .get(p)
             .cloned()
@@ -118,7 +118,7 @@ fn main() {
         let before = peak_kib().unwrap_or(0);
         let whole = args.get(i + 2).is_some_and(|m| m == "whole");
         let found = on_big_stack(move || {
-            let read = |p: &Path| std::fs::read(p);
+            let read = guardband_model::read_source;
             if whole {
                 // One model of everything, as the server and `report` hold it.
                 guardband_rules::check_workspace(&root, &entries, &read)

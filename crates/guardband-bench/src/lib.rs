@@ -237,8 +237,9 @@ mod tests {
     fn generated_specs_check_cleanly() {
         let dir = std::env::temp_dir().join(format!("guardband-gen-test-{}", std::process::id()));
         let g = generate(&dir, 6, 2).expect("generate");
-        let checked = guardband_rules::check_workspace(&g.root, &g.entries, &|p| std::fs::read(p))
-            .expect("check");
+        let checked =
+            guardband_rules::check_workspace(&g.root, &g.entries, &guardband_model::read_source)
+                .expect("check");
         let problems: Vec<String> = checked
             .diagnostics
             .iter()

@@ -2,9 +2,11 @@
 //! the rules, and prints diagnostics for people (ariadne) or tools (JSON).
 
 mod collect;
+mod excerpt;
 mod github;
 mod render;
 mod sarif;
+mod write;
 
 use clap::{Parser, Subcommand, ValueEnum};
 
@@ -174,7 +176,7 @@ fn check(
     let checked = match guardband_rules::check_each(
         &root,
         &files,
-        &|p| std::fs::read(p),
+        &guardband_model::read_source,
         threads,
         STACK_BYTES,
     ) {
@@ -240,7 +242,9 @@ fn check(
 }
 
 /// The workspace root and the `.guard` files under `paths`; on a usage or
-/// I/O failure prints why and returns the exit code.
+/// I/O failure prints why and returns the exit code. Entries that cannot be
+/// taken (outside the root, links that dangle or loop, pipes, devices) are
+/// named on standard error and skipped.
 fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> {
     let cwd = match std::env::current_dir() {
         Ok(d) => d,
@@ -249,11 +253,15 @@ fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> 
             return Err(ExitCode::from(2));
         }
     };
-    let (paths, files) = collect::files_or(paths, cwd.clone()).map_err(|msg| {
+    let first = paths.first().cloned().unwrap_or_else(|| cwd.clone());
+    let root = collect::workspace_root(&first, &cwd);
+    let canonical_root = root.canonicalize().unwrap_or_else(|_| root.clone());
+    let (_, found) = collect::files_or(paths, cwd.clone(), &canonical_root).map_err(|msg| {
         eprintln!("guardband: {msg}");
         ExitCode::from(2)
     })?;
-    Ok((collect::workspace_root(&paths[0], &cwd), files))
+    found.report_skipped();
+    Ok((root, found.files))
 }
 
 /// Finds the files under `paths` and runs the whole check on them as one
@@ -261,7 +269,7 @@ fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> 
 /// prints why and returns the exit code.
 fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCode> {
     let (root, files) = find_files(paths)?;
-    match guardband_rules::check_workspace(&root, &files, &|p| std::fs::read(p)) {
+    match guardband_rules::check_workspace(&root, &files, &guardband_model::read_source) {
         Ok(c) => Ok(c),
         Err((path, e)) => {
             eprintln!("guardband: cannot read {}: {e}", path.display());
@@ -293,32 +301,50 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
 }
 
 fn fmt(paths: Vec<PathBuf>, check_only: bool) -> ExitCode {
-    let files = match collect::files_or(paths, PathBuf::from(".")) {
-        Ok((_, files)) => files,
-        Err(msg) => {
-            eprintln!("guardband: {msg}");
-            return ExitCode::from(2);
-        }
+    // The same files `check` takes: nothing outside the workspace root is
+    // read or written, and a link is written through only to a file inside it.
+    let (_, files) = match find_files(paths) {
+        Ok(found) => found,
+        Err(code) => return code,
     };
+    let max_bytes = guardband_model::Limits::default().max_file_bytes;
     let (mut unformatted, mut failed) = (0, false);
     for path in files {
-        let text = match std::fs::read(&path).map(|b| guardband_model::decode(&b)) {
-            Ok(Ok(t)) => t,
-            Ok(Err((_, _, why))) => {
-                eprintln!("guardband: {}: {why}", path.display());
+        let bytes = match guardband_model::read_source(&path, max_bytes) {
+            Ok(b) if b.len() > max_bytes => {
+                eprintln!(
+                    "guardband: {} is larger than {}; not formatted",
+                    path.display(),
+                    guardband_model::limits::show_bytes(max_bytes)
+                );
                 failed = true;
                 continue;
             }
+            Ok(b) => b,
             Err(e) => {
                 eprintln!("guardband: cannot read {}: {e}", path.display());
                 failed = true;
                 continue;
             }
         };
+        let text = match guardband_model::decode(&bytes) {
+            Ok(t) => t,
+            Err((_, _, why)) => {
+                eprintln!("guardband: {}: {why}", path.display());
+                failed = true;
+                continue;
+            }
+        };
         let Some(formatted) = guardband_syntax::format::format(&text) else {
+            let parsed = guardband_syntax::parse(&text);
+            let first = parsed.errors.first().map(|e| {
+                let at = guardband_syntax::LineIndex::new(&text).line_col(e.span.start);
+                format!(" (the first at line {}: {})", at.line + 1, e.message)
+            });
             eprintln!(
-                "guardband: {} has syntax errors; not formatted (see `guardband check`)",
-                path.display()
+                "guardband: {} has syntax errors{}; not formatted (see `guardband check`)",
+                path.display(),
+                first.unwrap_or_default()
             );
             failed = true;
             continue;
@@ -329,11 +355,19 @@ fn fmt(paths: Vec<PathBuf>, check_only: bool) -> ExitCode {
         unformatted += 1;
         if check_only {
             print_line(&format!("would reformat {}", path.display()));
-        } else if let Err(e) = std::fs::write(&path, formatted) {
-            eprintln!("guardband: cannot write {}: {e}", path.display());
-            failed = true;
-        } else {
-            print_line(&format!("reformatted {}", path.display()));
+            continue;
+        }
+        // Through a link, the file it leads to (inside the root) is written.
+        let target = path.canonicalize().unwrap_or_else(|_| path.clone());
+        match write::replace(&target, &formatted) {
+            Ok(()) => print_line(&format!("reformatted {}", path.display())),
+            Err(e) => {
+                eprintln!(
+                    "guardband: cannot write {} (left as it was): {e}",
+                    path.display()
+                );
+                failed = true;
+            }
         }
     }
     if failed {

@@ -1,7 +1,8 @@
 //! Output: ariadne reports for people, one JSON object for tools. SARIF and
 //! workflow annotations are in their own modules.
 
-use ariadne::{Color, Config, IndexType, Label, Report, ReportKind};
+use crate::excerpt;
+use ariadne::{Cache, Color, Config, IndexType, Label, Report, ReportKind, Source};
 use guardband_model::{Diagnostic, Severity, Workspace};
 use std::io::{IsTerminal, Write};
 
@@ -35,7 +36,42 @@ pub fn stdout_wants_color() -> bool {
     std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
 }
 
-/// Writes every diagnostic through ariadne, then the summary line.
+/// An excerpt's name for ariadne: the file's display path (the index only
+/// tells excerpts of one file apart).
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+struct ExcerptId {
+    name: String,
+    index: usize,
+}
+
+impl std::fmt::Display for ExcerptId {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.name)
+    }
+}
+
+/// The excerpts of one finding, as ariadne reads them.
+struct Excerpts(Vec<(ExcerptId, Source<String>)>);
+
+impl Cache<ExcerptId> for Excerpts {
+    type Storage = String;
+
+    fn fetch(&mut self, id: &ExcerptId) -> Result<&Source<String>, impl std::fmt::Debug> {
+        self.0
+            .iter()
+            .find(|(i, _)| i == id)
+            .map(|(_, s)| s)
+            .ok_or("no such excerpt")
+    }
+
+    fn display<'a>(&self, id: &'a ExcerptId) -> Option<impl std::fmt::Display + 'a> {
+        Some(id.name.clone())
+    }
+}
+
+/// Writes every diagnostic through ariadne, then the summary line. Each
+/// finding shows an excerpt of its own (see [`crate::excerpt`]), so the
+/// cost is linear in the findings, however long the lines are.
 pub fn human(
     out: &mut dyn Write,
     color: bool,
@@ -43,15 +79,26 @@ pub fn human(
     diagnostics: &[Diagnostic],
     files: usize,
 ) -> std::io::Result<()> {
-    let mut cache = ariadne::sources(ws.files.iter().map(|f| (f.display.clone(), f.text.clone())));
     for d in diagnostics {
-        let name = ws.file(d.file).display.clone();
+        let mut spans: Vec<(guardband_model::FileId, std::ops::Range<usize>)> =
+            vec![(d.file, d.span.clone())];
+        spans.extend(d.labels.iter().map(|l| (l.file, l.span.clone())));
+        let excerpts = excerpt::excerpts(&|f| ws.file(f), &spans);
+        let id = |file: guardband_model::FileId, span: &std::ops::Range<usize>| {
+            let (a, start) = excerpt::locate(&excerpts, file, span.start).unwrap_or((0, 0));
+            let end = excerpt::locate(&excerpts, file, span.end)
+                .filter(|(b, _)| *b == a)
+                .map(|(_, e)| e)
+                .unwrap_or(start);
+            let name = ws.file(file).display.clone();
+            (ExcerptId { name, index: a }, start..end.max(start))
+        };
         let (kind, tint) = match d.severity {
             Severity::Error => (ReportKind::Error, Color::Red),
             Severity::Warning => (ReportKind::Warning, Color::Yellow),
             Severity::Info => (ReportKind::Advice, Color::Cyan),
         };
-        let mut report = Report::build(kind, (name.clone(), d.span.clone()))
+        let mut report = Report::build(kind, id(d.file, &d.span))
             .with_config(
                 Config::default()
                     .with_color(color)
@@ -60,13 +107,12 @@ pub fn human(
             .with_code(d.rule)
             .with_message(&d.message);
         if d.labels.is_empty() {
-            report = report.with_label(Label::new((name.clone(), d.span.clone())).with_color(tint));
+            report = report.with_label(Label::new(id(d.file, &d.span)).with_color(tint));
         }
         for (i, l) in d.labels.iter().enumerate() {
-            let label_name = ws.file(l.file).display.clone();
             let c = if i == 0 { tint } else { Color::Blue };
             report = report.with_label(
-                Label::new((label_name, l.span.clone()))
+                Label::new(id(l.file, &l.span))
                     .with_message(&l.message)
                     .with_color(c)
                     .with_order(i as i32),
@@ -75,6 +121,21 @@ pub fn human(
         if let Some(h) = &d.help {
             report = report.with_help(h);
         }
+        let mut cache = Excerpts(
+            excerpts
+                .iter()
+                .enumerate()
+                .map(|(index, e)| {
+                    let name = ws.file(e.file).display.clone();
+                    // ariadne 0.5 adds a display line offset to the header
+                    // but not to the margin, so the lines before the excerpt
+                    // are given as empty lines instead.
+                    let mut text = "\n".repeat(e.first_line as usize);
+                    text.push_str(&excerpt::plain_line_ends(&e.text));
+                    (ExcerptId { name, index }, Source::from(text))
+                })
+                .collect(),
+        );
         report.finish().write(&mut cache, &mut *out)?;
     }
     writeln!(out, "{}", summary(diagnostics, files))?;

@@ -108,10 +108,48 @@ fn region(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<
     })
 }
 
+/// Percent-encodes the bytes of a path for a URI: unreserved characters and
+/// `/` stay, everything else (spaces, `#`, `%`, non-ASCII and non-UTF-8
+/// bytes) becomes `%XX` (RFC 3986).
+pub fn percent_encode(bytes: &[u8]) -> String {
+    let mut out = String::with_capacity(bytes.len());
+    for &b in bytes {
+        if b.is_ascii_alphanumeric() || matches!(b, b'-' | b'.' | b'_' | b'~' | b'/') {
+            out.push(b as char);
+        } else {
+            out.push_str(&format!("%{b:02X}"));
+        }
+    }
+    out
+}
+
+/// The raw bytes of a path (its OS bytes on Unix, so that a name that is
+/// not UTF-8 keeps its bytes), with `/` separators.
+fn path_bytes(path: &std::path::Path) -> Vec<u8> {
+    #[cfg(unix)]
+    {
+        use std::os::unix::ffi::OsStrExt;
+        path.as_os_str().as_bytes().to_vec()
+    }
+    #[cfg(not(unix))]
+    {
+        path.to_string_lossy().replace('\\', "/").into_bytes()
+    }
+}
+
+/// A file's URI relative to the workspace root.
+fn relative_uri(ws: &Workspace, file: guardband_model::FileId) -> String {
+    let f = ws.file(file);
+    match f.path.strip_prefix(&ws.root) {
+        Ok(rel) => percent_encode(&path_bytes(rel)),
+        Err(_) => percent_encode(f.display.as_bytes()),
+    }
+}
+
 fn location(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<usize>) -> Value {
     json!({
         "physicalLocation": {
-            "artifactLocation": { "uri": ws.file(file).display, "uriBaseId": "WORKSPACE" },
+            "artifactLocation": { "uri": relative_uri(ws, file), "uriBaseId": "WORKSPACE" },
             "region": region(ws, file, span),
         }
     })
@@ -162,7 +200,7 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
             result
         })
         .collect();
-    let mut root_uri = ws.root.to_string_lossy().replace('\\', "/");
+    let mut root_uri = percent_encode(&path_bytes(&ws.root));
     if !root_uri.ends_with('/') {
         root_uri.push('/');
     }
@@ -184,7 +222,7 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
                     "rules": rules,
                 }
             },
-            "originalUriBaseIds": { "WORKSPACE": { "uri": root_uri.replace(' ', "%20") } },
+            "originalUriBaseIds": { "WORKSPACE": { "uri": root_uri } },
             "columnKind": "unicodeCodePoints",
             "results": results,
         }]
@@ -193,7 +231,16 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
 
 #[cfg(test)]
 mod tests {
-    use super::fnv1a;
+    use super::{fnv1a, percent_encode};
+
+    // RFC 3986 §2.1-2.3: a space is %20, `#` %23, `%` %25; UTF-8 bytes of
+    // `µ` (C2 B5) each become a %XX triplet; unreserved characters stay.
+    #[test]
+    fn uris_are_percent_encoded() {
+        assert_eq!(percent_encode(b"a b/c#d%e.guard"), "a%20b/c%23d%25e.guard");
+        assert_eq!(percent_encode("µ.guard".as_bytes()), "%C2%B5.guard");
+        assert_eq!(percent_encode(b"\xff~_-"), "%FF~_-");
+    }
 
     #[test]
     fn fnv1a_matches_the_published_test_vectors() {

@@ -8,7 +8,7 @@ use crate::encoding::Encoding;
 use crate::engine::root_for;
 use guardband_syntax::LineIndex;
 use std::collections::HashMap;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use tower_lsp_server::ls_types::{Range, TextDocumentContentChangeEvent, Uri};
 
 /// One open document.
@@ -40,13 +40,59 @@ pub struct Documents {
 }
 
 /// The path of a `file:` URI as the checker names files.
+///
+/// A document with no folder on disk (an `untitled:` buffer, a file in a
+/// folder that does not exist yet) is checked on its own, as a one-file
+/// workspace in an empty folder of the server's (see [`detached_root`]).
 pub fn uri_path(uri: &Uri) -> PathBuf {
-    let raw = uri
-        .to_file_path()
-        .map(|p| p.into_owned())
-        .unwrap_or_else(|| PathBuf::from(uri.as_str()));
-    raw.canonicalize()
-        .unwrap_or_else(|_| guardband_model::normalize(&raw))
+    let raw = uri.to_file_path().map(|p| p.into_owned());
+    let on_disk = raw
+        .as_ref()
+        .filter(|p| p.is_absolute() && p.parent().is_some_and(Path::is_dir));
+    match on_disk {
+        Some(raw) => raw
+            .canonicalize()
+            .unwrap_or_else(|_| guardband_model::normalize(raw)),
+        None => detached_root().join(detached_name(uri)),
+    }
+}
+
+/// The empty folder that documents without a folder on disk are checked
+/// in: nothing else is in it, so their `use` imports find nothing and
+/// nothing outside is read.
+pub fn detached_root() -> PathBuf {
+    static ROOT: std::sync::OnceLock<PathBuf> = std::sync::OnceLock::new();
+    ROOT.get_or_init(|| {
+        let dir =
+            std::env::temp_dir().join(format!("guardband-lsp-detached-{}", std::process::id()));
+        let _ = std::fs::create_dir_all(&dir);
+        dir.canonicalize().unwrap_or(dir)
+    })
+    .clone()
+}
+
+/// A file name for a document without a folder, from the end of its URI.
+fn detached_name(uri: &Uri) -> String {
+    let last = uri
+        .as_str()
+        .rsplit(['/', ':'])
+        .find(|s| !s.is_empty())
+        .unwrap_or("untitled");
+    let mut name: String = last
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || matches!(c, '.' | '-' | '_') {
+                c
+            } else {
+                '_'
+            }
+        })
+        .take(64)
+        .collect();
+    if !name.ends_with(".guard") {
+        name.push_str(".guard");
+    }
+    name
 }
 
 impl Documents {
@@ -168,6 +214,29 @@ mod tests {
         docs.change(&uri(), 3, vec![edit(9, 9, 12, 0, "!")], Encoding::Utf16)
             .expect("applies");
         assert_eq!(docs.get(&uri()).expect("open").text, "aXc\ndef!");
+    }
+
+    #[test]
+    fn edits_on_carriage_return_only_text_land_where_the_editor_put_them() {
+        let mut docs = Documents::default();
+        docs.open(uri(), "ab\rcd\ref".into(), 1, &[]);
+        // Line 2, column 1 is between `e` and `f`, as LSP counts lines.
+        docs.change(&uri(), 2, vec![edit(2, 1, 2, 1, "X")], Encoding::Utf16)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "ab\rcd\reXf");
+        docs.change(&uri(), 3, vec![edit(1, 0, 1, 2, "Y")], Encoding::Utf8)
+            .expect("applies");
+        assert_eq!(docs.get(&uri()).expect("open").text, "ab\rY\reXf");
+    }
+
+    #[test]
+    fn a_document_without_a_folder_is_checked_on_its_own() {
+        let untitled: Uri = "untitled:Untitled-1".parse().expect("uri");
+        let path = uri_path(&untitled);
+        assert!(path.starts_with(detached_root()), "{}", path.display());
+        assert!(path.extension().is_some_and(|e| e == "guard"));
+        let missing: Uri = "file:///no/such/folder/x.guard".parse().expect("uri");
+        assert!(uri_path(&missing).starts_with(detached_root()));
     }
 
     #[test]

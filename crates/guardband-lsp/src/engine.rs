@@ -30,10 +30,12 @@ impl Analysis {
             .iter()
             .map(|d| (d.path.as_path(), d.text.as_str()))
             .collect();
-        let read = |p: &Path| -> std::io::Result<Vec<u8>> {
+        let read = |p: &Path, limit: usize| -> std::io::Result<Vec<u8>> {
             match overlay.get(p) {
-                Some(text) => Ok(text.as_bytes().to_vec()),
-                None => std::fs::read(p),
+                Some(text) => {
+                    Ok(text.as_bytes()[..text.len().min(limit.saturating_add(1))].to_vec())
+                }
+                None => guardband_model::read_source(p, limit),
             }
         };
         let entries: Vec<PathBuf> = documents

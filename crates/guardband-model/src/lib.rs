@@ -10,6 +10,7 @@ mod eval;
 pub mod form;
 pub mod limits;
 pub mod model;
+mod read;
 pub mod schema;
 mod suggest;
 pub mod value;
@@ -19,10 +20,11 @@ pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Severity};
 pub use eval::visible_items;
 pub use limits::Limits;
 pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
+pub use read::{is_link_loop, read_source};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
 pub use value::{Bounds, Corner, SourceId, Spread, Term, ToleranceSource, Value, ValueError};
-pub use workspace::{SourceFile, Workspace, decode, load, load_with, normalize};
+pub use workspace::{Read, SourceFile, Workspace, decode, load, load_with, normalize};
 
 use guardband_syntax::SyntaxError;
 

@@ -134,6 +134,11 @@ pub fn decode(bytes: &[u8]) -> Result<String, (String, usize, String)> {
     }
 }
 
+/// How a check reads a file: its bytes, at most `limit + 1` of them (the
+/// caller tells a file over the limit by its length). [`crate::read_source`]
+/// reads from disk; an editor reads its open buffers first.
+pub type Read<'a> = dyn Fn(&Path, usize) -> std::io::Result<Vec<u8>> + Sync + 'a;
+
 /// Loads the given files and everything they import. Diagnostics for bad
 /// encodings, missing imports, imports leaving `root` and import cycles are
 /// pushed to `diagnostics`. Unreadable entry files are returned as errors.
@@ -145,7 +150,7 @@ pub fn load(
     load_with(
         root,
         entries,
-        &|p: &Path| std::fs::read(p),
+        &crate::read_source,
         &Limits::default(),
         diagnostics,
     )
@@ -158,7 +163,7 @@ pub fn load(
 pub fn load_with(
     root: &Path,
     entries: &[PathBuf],
-    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    read: &Read,
     limits: &Limits,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
@@ -168,7 +173,7 @@ pub fn load_with(
             Ok(c) => Ok(c),
             Err(e) => {
                 let plain = normalize(path);
-                if read(&plain).is_ok() {
+                if read(&plain, 0).is_ok() {
                     Ok(plain)
                 } else {
                     Err(e)
@@ -187,7 +192,7 @@ pub fn load_with(
         if ws.find(&path).is_some() {
             continue;
         }
-        let bytes = read(&path).map_err(|e| (entry.clone(), e))?;
+        let bytes = read(&path, limits.max_file_bytes).map_err(|e| (entry.clone(), e))?;
         let id = add_file(&mut ws, path, &bytes, limits, diagnostics);
         queue.push_back((id, 0));
     }
@@ -222,27 +227,44 @@ pub fn load_with(
             if !target.starts_with(&root) {
                 diagnostics.push(problem(
                     "import-outside-workspace",
-                    format!("`{}` is outside the workspace root", u.path),
+                    format!(
+                        "`{}` is outside the workspace root `{}`",
+                        u.path,
+                        root_name(&root)
+                    ),
                     "this path leaves the workspace",
                     Some("imports must stay inside the workspace (the folder holding guardband.toml); move the shared file into it"),
                 ));
                 continue;
             }
-            let Ok(canonical) = canonical_or_known(&target) else {
-                diagnostics.push(problem(
-                    "import-not-found",
-                    format!("cannot find `{}`", u.path),
-                    "no such file",
-                    Some("paths in `use` are relative to the importing file"),
-                ));
-                continue;
+            let canonical = match canonical_or_known(&target) {
+                Ok(c) => c,
+                Err(e) if crate::is_link_loop(&e) => {
+                    diagnostics.push(problem(
+                        "import-not-found",
+                        format!("`{}` is a loop of links", u.path),
+                        "the links lead back to themselves",
+                        Some("point the link at the file itself"),
+                    ));
+                    continue;
+                }
+                Err(_) => {
+                    diagnostics.push(problem(
+                        "import-not-found",
+                        format!("cannot find `{}`", u.path),
+                        "no such file",
+                        Some("paths in `use` are relative to the importing file"),
+                    ));
+                    continue;
+                }
             };
             if !canonical.starts_with(&root) {
                 diagnostics.push(problem(
                     "import-outside-workspace",
                     format!(
-                        "`{}` resolves (through a link) outside the workspace root",
-                        u.path
+                        "`{}` resolves (through a link) outside the workspace root `{}`",
+                        u.path,
+                        root_name(&root)
                     ),
                     "this path leaves the workspace",
                     None,
@@ -275,7 +297,7 @@ pub fn load_with(
                     ));
                     continue;
                 }
-                None => match read(&canonical) {
+                None => match read(&canonical, limits.max_file_bytes) {
                     Ok(bytes) => {
                         let t = add_file(&mut ws, canonical, &bytes, limits, diagnostics);
                         queue.push_back((t, depth + 1));
@@ -300,6 +322,14 @@ pub fn load_with(
     Ok(ws)
 }
 
+/// The root as messages name it: its folder name, with a slash.
+fn root_name(root: &Path) -> String {
+    match root.file_name() {
+        Some(n) => format!("{}/", n.to_string_lossy()),
+        None => root.display().to_string(),
+    }
+}
+
 fn add_file(
     ws: &mut Workspace,
     path: PathBuf,
@@ -315,8 +345,14 @@ fn add_file(
                 id,
                 0..0,
                 format!(
-                    "this file is {}, larger than the {} limit; it was not checked",
-                    show_bytes(bytes.len()),
+                    "this file is {}larger than the {} limit; it was not checked",
+                    // Only the limit and one byte are read; the size on disk says the rest.
+                    std::fs::metadata(&path)
+                        .ok()
+                        .map(|m| m.len() as usize)
+                        .filter(|n| *n > limits.max_file_bytes)
+                        .map(|n| format!("{}, ", show_bytes(n)))
+                        .unwrap_or_default(),
                     show_bytes(limits.max_file_bytes)
                 ),
             )

@@ -71,7 +71,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     let specs = ws
         .files
         .iter()
-        .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
+        .filter(|f| Some(f.id) != checked.config.file)
         .count();
     let plural = |n: usize, word: &str| {
         if n == 1 {

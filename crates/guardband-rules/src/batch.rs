@@ -25,7 +25,7 @@ pub struct Findings {
     pub config: Config,
     /// Sorted by file, position and rule, as [`crate::Checked::diagnostics`].
     pub diagnostics: Vec<Diagnostic>,
-    /// How many distinct `.guard` files were read, entries and imports.
+    /// How many distinct spec files were read, entries and imports.
     pub files_checked: usize,
 }
 
@@ -56,7 +56,7 @@ struct Unit {
 pub fn check_each(
     root: &Path,
     entries: &[PathBuf],
-    read: &(dyn Fn(&Path) -> std::io::Result<Vec<u8>> + Sync),
+    read: &guardband_model::Read,
     threads: usize,
     stack_bytes: usize,
 ) -> Result<Findings, (PathBuf, std::io::Error)> {
@@ -91,15 +91,16 @@ pub fn check_each(
 fn check_one(
     root: &Path,
     entries: &[PathBuf],
-    read: &(dyn Fn(&Path) -> std::io::Result<Vec<u8>> + Sync),
+    read: &guardband_model::Read,
     settings: &Settings,
 ) -> Result<Unit, (PathBuf, std::io::Error)> {
     let checked = check_with_settings(root, entries, read, settings)?;
+    // Every file read as a spec, whatever its name (not guardband.toml).
     let guard_files = checked
         .ws
         .files
         .iter()
-        .filter(|f| f.path.extension().is_some_and(|e| e == "guard"))
+        .filter(|f| Some(f.id) != checked.config.file)
         .map(|f| f.path.clone())
         .collect();
     let mut wanted = vec![false; checked.ws.files.len()];
@@ -189,22 +190,7 @@ impl Merged {
             files: self.files,
         };
         let mut diagnostics = self.diagnostics;
-        diagnostics.sort_by(|a, b| {
-            (
-                ws.file(a.file).display.as_str(),
-                a.span.start,
-                a.span.end,
-                a.rule,
-                &a.message,
-            )
-                .cmp(&(
-                    ws.file(b.file).display.as_str(),
-                    b.span.start,
-                    b.span.end,
-                    b.rule,
-                    &b.message,
-                ))
-        });
+        crate::sort_diagnostics(&ws, &mut diagnostics);
         // An imported file's findings come once from every file importing it.
         diagnostics.dedup();
         Findings {
@@ -258,7 +244,7 @@ mod tests {
     }
 
     fn compare(root: &Path, entries: &[PathBuf]) -> usize {
-        let read = |p: &Path| std::fs::read(p);
+        let read = guardband_model::read_source;
         let whole = check_workspace(root, entries, &read).expect("whole check");
         let mut expected: Vec<String> = whole
             .diagnostics
@@ -326,7 +312,7 @@ mod tests {
     fn an_import_cycle_reads_the_same_from_either_end() {
         let top = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
         let root = top.join("tests/fixtures/workspaces/import_cycle");
-        let read = |p: &Path| std::fs::read(p);
+        let read = guardband_model::read_source;
         let seen: Vec<Vec<String>> = ["a.guard", "b.guard"]
             .iter()
             .map(|f| {

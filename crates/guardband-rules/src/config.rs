@@ -183,6 +183,7 @@ fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, S
                         "max_nesting" => "48",
                         "max_import_depth" => "32",
                         "max_files" => "10000",
+                        "max_findings_per_rule" => "200",
                         _ => "50000000",
                     }
                 ),
@@ -212,6 +213,10 @@ fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, S
                 Some(n) => limits.max_eval_steps = n,
                 None => problems.push(bad("a positive whole number")),
             },
+            "max_findings_per_rule" => match count(value, 10_000_000) {
+                Some(n) => limits.max_findings_per_rule = n as usize,
+                None => problems.push(bad("a whole number from 1 to 10000000")),
+            },
             other => {
                 let known = [
                     "max_file_size",
@@ -219,6 +224,7 @@ fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, S
                     "max_import_depth",
                     "max_files",
                     "max_eval_steps",
+                    "max_findings_per_rule",
                 ];
                 let help = did_you_mean(other, known.iter().copied())
                     .map(|s| format!("did you mean `{s}`?"))
@@ -233,6 +239,9 @@ fn parse_limits(table: &toml::Table) -> (guardband_model::Limits, Vec<(String, S
     }
     (limits, problems)
 }
+
+/// The most of `guardband.toml` that is read (it is a page of settings).
+const CONFIG_MAX_BYTES: usize = 1024 * 1024;
 
 /// `guardband.toml` read and parsed once, then applied to any number of
 /// checks: the file-by-file check applies it to every file's check, and its
@@ -254,12 +263,9 @@ impl Settings {
 
     /// Reads `guardband.toml` at `root` (a canonical path) through `read`;
     /// a missing file gives the defaults.
-    pub fn read(
-        root: &std::path::Path,
-        read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
-    ) -> Settings {
+    pub fn read(root: &std::path::Path, read: &guardband_model::Read) -> Settings {
         let path = root.join("guardband.toml");
-        let Ok(bytes) = read(&path) else {
+        let Ok(bytes) = read(&path, CONFIG_MAX_BYTES) else {
             return Settings {
                 path,
                 text: None,
@@ -309,13 +315,13 @@ impl Config {
     /// diagnostics in that file (added to the workspace so they can be shown);
     /// the defaults stand in for any bad value.
     pub fn load(ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
-        Config::load_with(ws, &|p: &std::path::Path| std::fs::read(p))
+        Config::load_with(ws, &guardband_model::read_source)
     }
 
     /// Like [`Config::load`], reading through `read` (an editor's buffers).
     pub fn load_with(
         ws: &mut Workspace,
-        read: &dyn Fn(&std::path::Path) -> std::io::Result<Vec<u8>>,
+        read: &guardband_model::Read,
     ) -> (Config, Vec<Diagnostic>) {
         Settings::read(&ws.root, read).apply(ws)
     }

@@ -61,7 +61,7 @@ impl Checked {
 pub fn check_workspace(
     root: &Path,
     entries: &[std::path::PathBuf],
-    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    read: &guardband_model::Read,
 ) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
     check_with_settings(&root, entries, read, &Settings::read(&root, read))
@@ -72,7 +72,7 @@ pub fn check_workspace(
 pub fn check_with_settings(
     root: &Path,
     entries: &[std::path::PathBuf],
-    read: &dyn Fn(&Path) -> std::io::Result<Vec<u8>>,
+    read: &guardband_model::Read,
     settings: &Settings,
 ) -> Result<Checked, (std::path::PathBuf, std::io::Error)> {
     let mut diagnostics = Vec::new();
@@ -88,20 +88,9 @@ pub fn check_with_settings(
         .collect();
     let mut diagnostics = run_rules(&ws, &model, &config, &derived, diagnostics);
     ws.normalize_spans(&mut diagnostics);
-    diagnostics.sort_by(|a, b| {
-        (
-            ws.file(a.file).display.as_str(),
-            a.span.start,
-            a.span.end,
-            a.rule,
-        )
-            .cmp(&(
-                ws.file(b.file).display.as_str(),
-                b.span.start,
-                b.span.end,
-                b.rule,
-            ))
-    });
+    sort_diagnostics(&ws, &mut diagnostics);
+    let diagnostics =
+        guardband_model::limits::cap_findings(diagnostics, config.limits.max_findings_per_rule);
     Ok(Checked {
         ws,
         config,
@@ -109,6 +98,27 @@ pub fn check_with_settings(
         derived,
         diagnostics,
     })
+}
+
+/// The order every front end shows findings in: by file (display path),
+/// position, rule, then message (so that equal findings sit together).
+pub fn sort_diagnostics(ws: &Workspace, diagnostics: &mut [Diagnostic]) {
+    diagnostics.sort_by(|a, b| {
+        (
+            ws.file(a.file).display.as_str(),
+            a.span.start,
+            a.span.end,
+            a.rule,
+            &a.message,
+        )
+            .cmp(&(
+                ws.file(b.file).display.as_str(),
+                b.span.start,
+                b.span.end,
+                b.rule,
+                &b.message,
+            ))
+    });
 }
 
 /// Runs every enabled rule and applies waivers. `diagnostics` holds what the
@@ -189,7 +199,7 @@ fn run_rules(
             .any(|(f, s)| *f == d.file && s.start <= d.span.start && d.span.start <= s.end)
     });
     let mut waivers = suppress::collect(ws, &mut diagnostics);
-    diagnostics.extend(suppress::apply(ws, &mut waivers, findings));
+    diagnostics.extend(suppress::apply(&mut waivers, findings));
     diagnostics.extend(suppress::unused(&waivers));
     diagnostics
 }

@@ -158,7 +158,7 @@ fn check(text: &str) -> Checked {
     let root = std::env::temp_dir();
     let path: PathBuf = root.join("soundness-spec.guard");
     let files: HashMap<PathBuf, Vec<u8>> = [(path.clone(), text.as_bytes().to_vec())].into();
-    let read = move |p: &Path| {
+    let read = move |p: &Path, _limit: usize| {
         files
             .get(p)
             .cloned()

@@ -14,7 +14,12 @@ use crate::{Comment, Span, parse};
 const INDENT: &str = "    ";
 
 /// Formats `text`, or returns `None` when it does not parse cleanly.
+/// Line ends come out as `\n`, whatever the input used (`\r\n`, `\r`).
 pub fn format(text: &str) -> Option<String> {
+    if text.contains('\r') {
+        let unified = text.replace("\r\n", "\n").replace('\r', "\n");
+        return format(&unified);
+    }
     let parsed = parse(text);
     if !parsed.errors.is_empty() {
         return None;
@@ -73,7 +78,17 @@ impl<'a> Formatter<'a> {
             }
             match item {
                 Item::Use(u) => {
-                    self.out.push_str(&format!("use \"{}\"", u.path));
+                    let inside = self.comments[self.next_comment..]
+                        .iter()
+                        .take_while(|c| c.span.start < u.span.end)
+                        .filter(|c| c.span.start >= u.span.start)
+                        .count();
+                    if inside > 0 {
+                        self.out.push_str(&self.text[u.span.clone()]);
+                        self.next_comment += inside;
+                    } else {
+                        self.out.push_str(&format!("use \"{}\"", u.path));
+                    }
                     self.last_end = span.end;
                     self.trailing_comment();
                     self.out.push('\n');
@@ -169,44 +184,49 @@ impl<'a> Formatter<'a> {
 
     fn block(&mut self, b: &Block, depth: usize) {
         self.indent(depth);
-        self.out.push_str(&b.keyword.text);
-        if let Some(n) = &b.name {
-            self.out.push(' ');
-            self.out.push_str(&n.text);
+        let open = b.name.as_ref().unwrap_or(&b.keyword).span.end;
+        let brace = self.text[open..]
+            .find('{')
+            .map(|i| open + i)
+            .unwrap_or(open);
+        // Comments between the keyword and `{` keep the header as written.
+        let in_header = self.comments[self.next_comment..]
+            .iter()
+            .take_while(|c| c.span.start < brace)
+            .filter(|c| c.span.start >= b.keyword.span.start)
+            .count();
+        let mut header_ends_in_comment = false;
+        if in_header > 0 {
+            let header = self.text[b.keyword.span.start..brace].trim_end();
+            let last = &self.comments[self.next_comment + in_header - 1];
+            header_ends_in_comment = last.span.end >= b.keyword.span.start + header.len();
+            self.out.push_str(header);
+            self.next_comment += in_header;
+        } else {
+            self.out.push_str(&b.keyword.text);
+            if let Some(n) = &b.name {
+                self.out.push(' ');
+                self.out.push_str(&n.text);
+            }
         }
         let body_end = b.span.end.saturating_sub(1);
+        if header_ends_in_comment {
+            self.out.push('\n');
+            self.indent(depth);
+        } else {
+            self.out.push(' ');
+        }
         if b.members.is_empty() && self.comments_before(body_end) == 0 {
-            self.out.push_str(" {}");
+            self.out.push_str("{}");
             self.last_end = b.span.end;
             self.trailing_comment();
             self.out.push('\n');
             return;
         }
-        self.out.push_str(" {");
-        let open = b.name.as_ref().unwrap_or(&b.keyword).span.end;
-        self.last_end = self.text[open..]
-            .find('{')
-            .map(|i| open + i + 1)
-            .unwrap_or(open);
-        let one_line = !self.text[b.span.clone()].contains('\n');
-        if one_line {
-            // `startup { load = 20 mA }  // note` becomes several lines; the
-            // note goes with the opening line rather than the closing brace.
-            let brace = self.last_end;
-            self.last_end = b.span.end;
-            if self.take_trailing().is_none() {
-                self.last_end = brace;
-            } else {
-                self.next_comment -= 1;
-                let c = self.comments[self.next_comment].text.trim_end().to_string();
-                self.next_comment += 1;
-                self.out.push_str("  ");
-                self.out.push_str(&c);
-                self.last_end = brace;
-            }
-        } else {
-            self.trailing_comment();
-        }
+        self.out.push('{');
+        self.last_end = brace + 1;
+        // A comment after a one-line block's `}` stays after its `}`.
+        self.trailing_comment();
         self.out.push('\n');
         self.members(&b.members, depth + 1);
         self.leading_comments(body_end, depth + 1);
@@ -270,10 +290,24 @@ impl<'a> Formatter<'a> {
             key.push(' ');
             key.push_str(&n.text);
         }
-        let (value, inner) = self.value_text(&f.value.span);
+        // A comment anywhere in the field (after the keyword, between the key
+        // and `=`, inside the value) keeps the rest of the field as written,
+        // so that every comment stays where it was, in order.
+        let inner = self.comments[self.next_comment..]
+            .iter()
+            .take_while(|c| c.span.start < f.span.end)
+            .filter(|c| c.span.start >= f.span.start)
+            .count();
+        let rest = if inner > 0 {
+            key = f.keyword.text.to_string();
+            self.text[f.keyword.span.end..f.span.end]
+                .trim_start()
+                .to_string()
+        } else {
+            format!("{} {}", f.relation.symbol(), self.value_text(&f.value.span))
+        };
         self.next_comment += inner;
         self.last_end = f.span.end;
-        let rest = format!("{} {}", f.relation.symbol(), value);
         let trailing = self.take_trailing();
         RunLine::Field {
             key,
@@ -282,18 +316,9 @@ impl<'a> Formatter<'a> {
         }
     }
 
-    /// The value as written with whitespace runs collapsed; kept verbatim
-    /// (with the number of comments it contains) when a comment sits inside.
-    fn value_text(&self, span: &Span) -> (String, usize) {
+    /// The value as written with whitespace runs collapsed (not inside strings).
+    fn value_text(&self, span: &Span) -> String {
         let raw = &self.text[span.clone()];
-        let inner = self.comments[self.next_comment..]
-            .iter()
-            .take_while(|c| c.span.start < span.end)
-            .filter(|c| c.span.start >= span.start)
-            .count();
-        if inner > 0 {
-            return (raw.to_string(), inner);
-        }
         let mut out = String::with_capacity(raw.len());
         let mut in_string = false;
         let mut space = false;
@@ -311,7 +336,7 @@ impl<'a> Formatter<'a> {
             }
             out.push(ch);
         }
-        (out, 0)
+        out
     }
 
     /// Writes a run of fields with their operators and trailing comments aligned.
@@ -481,7 +506,7 @@ mod tests {
         );
         assert_eq!(
             out,
-            "regulator r {\n    startup {  // note\n        load = 2 mA\n    }\n\n    pin p {}\n}\n"
+            "regulator r {\n    startup {\n        load = 2 mA\n    }  // note\n\n    pin p {}\n}\n"
         );
     }
 
@@ -547,8 +572,16 @@ mod tests {
         }
 
         fn member(depth: u32) -> BoxedStrategy<String> {
-            let field = (name(), prop::sample::select(vec!["=", "<=", ">="]), value())
-                .prop_map(|(k, op, v)| format!("{k} {op} {v}"));
+            let field = (
+                name(),
+                proptest::option::of(name()),
+                prop::sample::select(vec!["=", "<=", ">="]),
+                value(),
+            )
+                .prop_map(|(k, n, op, v)| match n {
+                    Some(n) => format!("{k} {n} {op} {v}"),
+                    None => format!("{k} {op} {v}"),
+                });
             if depth == 0 {
                 return field.boxed();
             }
@@ -584,8 +617,67 @@ mod tests {
             })
         }
 
+        /// Tokens and comments in source order, as text: what formatting must
+        /// keep, in this order, whatever it does with the space between them.
+        fn sequence(src: &str) -> Vec<String> {
+            let (tokens, comments) = crate::lex(src);
+            let mut seq: Vec<(usize, String)> = tokens
+                .iter()
+                // A number and its unit are one token; the space between is collapsed.
+                .map(|(_, s)| {
+                    (
+                        s.start,
+                        src[s.clone()]
+                            .split_whitespace()
+                            .collect::<Vec<_>>()
+                            .join(" "),
+                    )
+                })
+                .collect();
+            seq.extend(
+                comments
+                    .iter()
+                    .map(|c| (c.span.start, c.text.trim_end().to_string())),
+            );
+            seq.sort_by_key(|(at, _)| *at);
+            seq.into_iter().map(|(_, t)| t).collect()
+        }
+
+        /// `src` with a comment after each token whose index is in `after`.
+        fn with_comments(src: &str, after: &[usize]) -> String {
+            let (tokens, _) = crate::lex(src);
+            let mut out = String::new();
+            let mut last = 0;
+            for (i, (_, span)) in tokens.iter().enumerate() {
+                out.push_str(&src[last..span.end]);
+                last = span.end;
+                if after.contains(&i) {
+                    out.push_str(&format!(" // c{i}\n"));
+                }
+            }
+            out.push_str(&src[last..]);
+            out
+        }
+
         proptest! {
             #![proptest_config(ProptestConfig::with_cases(256))]
+
+            #[test]
+            fn every_comment_survives_in_order(
+                src in spec(),
+                after in proptest::collection::vec(0usize..200, 1..8),
+            ) {
+                let commented = with_comments(&src, &after);
+                let Some(formatted) = format(&commented) else {
+                    // A comment that splits what must touch (an asymmetric
+                    // tolerance's sign and number) makes a file that does not
+                    // parse; the formatter then leaves it alone.
+                    return Ok(());
+                };
+                prop_assert_eq!(sequence(&commented), sequence(&formatted), "{}\n---\n{}", commented, formatted);
+                let again = format(&formatted);
+                prop_assert_eq!(again.as_deref(), Some(formatted.as_str()), "idempotent");
+            }
 
             #[test]
             fn formatting_is_idempotent_and_keeps_the_tree(src in spec()) {

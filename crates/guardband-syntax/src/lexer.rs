@@ -20,7 +20,8 @@ pub struct NumberToken {
 #[derive(Logos, Debug, Clone, Copy, PartialEq)]
 #[logos(skip r"[ \t\r\n\f\u{FEFF}]+")]
 pub enum Token<'src> {
-    #[regex(r"//[^\n]*")]
+    /// Runs to the end of the line: `\n`, `\r\n` or a lone `\r`.
+    #[regex(r"//[^\r\n]*")]
     Comment(&'src str),
     #[token("use")]
     Use,
@@ -32,7 +33,7 @@ pub enum Token<'src> {
     Ident(&'src str),
     #[regex(r"[0-9]+(\.[0-9]+)?([eE][+-]?[0-9]+)?", lex_number)]
     Number(NumberToken),
-    #[regex(r#""[^"\n]*""#)]
+    #[regex(r#""[^"\r\n]*""#)]
     Str(&'src str),
     #[token("{")]
     LBrace,
@@ -73,6 +74,9 @@ pub enum Token<'src> {
     PlusMinus,
     /// Characters that start no token; adjacent ones are merged into one.
     Error,
+    /// Text cut out before parsing (nested too deep), already reported;
+    /// never produced by the lexer.
+    Cut,
 }
 
 impl fmt::Display for Token<'_> {
@@ -104,6 +108,7 @@ impl fmt::Display for Token<'_> {
             Token::Slash => write!(f, "`/`"),
             Token::PlusMinus => write!(f, "`±`"),
             Token::Error => write!(f, "an unexpected character"),
+            Token::Cut => write!(f, "text nested too deep"),
         }
     }
 }
@@ -263,6 +268,10 @@ mod tests {
 
     #[test]
     fn comments_are_kept_aside_and_errors_merge() {
+        // A lone carriage return ends a comment, as LSP and editors count lines.
+        let (cr_tokens, cr_comments) = lex("a // note\rbogus = 1");
+        assert_eq!(cr_comments[0].text, "// note");
+        assert_eq!(cr_tokens.len(), 4, "{cr_tokens:?}");
         let (tokens, comments) = lex("a // note\n@@@ b");
         assert_eq!(comments.len(), 1);
         assert_eq!(comments[0].text, "// note");

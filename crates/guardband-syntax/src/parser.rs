@@ -282,13 +282,22 @@ fn limit_nesting(
                         message: format!("nesting deeper than {max} levels"),
                         label: "too deeply nested; simplify this expression".to_string(),
                     });
-                    out.push((Token::Error, s));
+                    out.push((Token::Cut, s));
                 }
             }
             continue;
         }
         if opens && depth > max {
-            cut = Some((depth, span));
+            // A call cut off at its `(` takes its name with it, so that the
+            // name is not reported again as an unknown value.
+            let mut start = span.start;
+            if tok == Token::LParen {
+                while let Some((Token::Ident(_) | Token::Dot, s)) = out.last() {
+                    start = s.start;
+                    out.pop();
+                }
+            }
+            cut = Some((depth, start..span.end));
             continue;
         }
         if closes {
@@ -302,7 +311,7 @@ fn limit_nesting(
             message: format!("nesting deeper than {max} levels, never closed"),
             label: "too deeply nested".to_string(),
         });
-        out.push((Token::Error, s));
+        out.push((Token::Cut, s));
     }
     (out, errors)
 }
@@ -454,10 +463,15 @@ where
                 },
             )));
 
+        // Text cut out for nesting too deep: its error is already reported.
+        let cut =
+            select! { Token::Cut = e => Expr { kind: ExprKind::Error, span: range(e.span()) } };
+
         // Boxing erases the combinator types: it keeps compile and lint times reasonable.
         let atom = literal
             .or(paren)
             .or(path_or_call)
+            .or(cut)
             .labelled("a value")
             .boxed();
 
@@ -692,6 +706,7 @@ where
                 }),
             })
             .labelled("a field")
+            .or(select! { Token::Cut = e => Member::Error(range(e.span())) })
             .or(junk_member)
             .boxed()
     });
@@ -747,6 +762,7 @@ where
 
     use_item
         .or(block_item)
+        .or(select! { Token::Cut = e => Item::Error(range(e.span())) })
         .or(junk_item)
         .repeated()
         .collect::<Vec<Item>>()

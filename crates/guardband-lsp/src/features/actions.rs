@@ -173,10 +173,45 @@ fn size_conductor(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<F
             "Set `{key}` of `{}` to {new_text} (carries the worst current)",
             node.key()
         ),
-        edits: vec![(field.expr.span.clone(), new_text)],
+        edits: vec![(
+            field.expr.span.clone(),
+            keeping_comments(analysis, d.file, &field.expr.span, new_text),
+        )],
         safe: true,
         diagnostic: index,
     })
+}
+
+/// The text that replaces `span` with `new_text` and keeps every comment
+/// written inside `span`: each on its own line before the new text.
+fn keeping_comments(
+    analysis: &Analysis,
+    file: guardband_model::FileId,
+    span: &std::ops::Range<usize>,
+    new_text: String,
+) -> String {
+    let source = analysis.checked.ws.file(file);
+    let inner: Vec<&str> = source
+        .parse
+        .file
+        .comments
+        .iter()
+        .filter(|c| span.start <= c.span.start && c.span.end <= span.end)
+        .map(|c| c.text.trim_end())
+        .collect();
+    if inner.is_empty() {
+        return new_text;
+    }
+    let indent = indent_at(&source.text, span.start).to_string();
+    let mut out = String::new();
+    for c in inner {
+        out.push_str(c);
+        out.push('\n');
+        out.push_str(&indent);
+        out.push_str("    ");
+    }
+    out.push_str(&new_text);
+    out
 }
 
 /// The indentation of the line holding `offset`.
