@@ -16,7 +16,7 @@ fn examples_show_each_rule_where_documented() {
     assert!(
         run.stdout
             .trim_end()
-            .ends_with("13 errors, 6 warnings, 3 infos in 7 files"),
+            .ends_with("14 errors, 5 warnings, 3 infos in 7 files"),
         "{}",
         run.stdout
     );
@@ -27,6 +27,7 @@ fn examples_show_each_rule_where_documented() {
         ("unlimited-surge", "flawed/lamp_rail.guard"),
         ("missing-fault-case", "flawed/aux_rail.guard"),
         ("limit-loop-analysis", "flawed/aux_rail.guard"),
+        ("limit-loop-incomplete", "flawed/aux_rail.guard"),
         ("clamp-too-weak", "flawed/aux_rail.guard"),
         ("short-overheat", "flawed/aux_rail.guard"),
         ("slow-start", "flawed/wake_rail.guard"),
@@ -111,6 +112,51 @@ fn every_rule_fixture_fails_and_passes_as_named() {
         }
     }
     assert!(seen >= 22, "only {seen} rule fixtures");
+}
+
+/// The README's table of rules names every registered rule with its default.
+#[test]
+fn the_readme_lists_every_rule_with_its_default() {
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    for r in guardband_rules::registry() {
+        let sev = r.default_severity.map(|s| s.as_str()).unwrap_or("off");
+        let row = readme
+            .lines()
+            .find(|l| l.starts_with(&format!("| `{}` |", r.name)))
+            .unwrap_or_else(|| panic!("README lacks a row for {}", r.name));
+        assert!(row.trim_end().ends_with(&format!("| {sev} |")), "{row}");
+    }
+}
+
+/// Every registered rule has its fixture folder, holding a failing and a
+/// passing case, and every folder is a registered rule.
+#[test]
+fn every_rule_has_a_fixture_folder_and_every_folder_a_rule() {
+    let mut folders: Vec<String> = std::fs::read_dir(fixture("rules"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    folders.sort();
+    let mut rules: Vec<String> = guardband_rules::registry()
+        .iter()
+        .map(|r| r.name.to_string())
+        .collect();
+    rules.sort();
+    assert_eq!(folders, rules);
+    for rule in &rules {
+        let names: Vec<String> = std::fs::read_dir(fixture("rules").join(rule))
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        assert!(
+            names.iter().any(|n| n.starts_with("fail")),
+            "{rule} has no failing case"
+        );
+        assert!(
+            names.iter().any(|n| n.starts_with("pass")),
+            "{rule} has no passing case"
+        );
+    }
 }
 
 /// Each slip a designer makes gives exactly the findings meant for it: the

@@ -29,7 +29,7 @@ fn meaning(path: &Path, text: &str) -> (Vec<String>, Vec<String>) {
         }
     };
     let checked =
-        guardband_rules::check_workspace(&root, &[path.to_path_buf()], &read).expect("check");
+        guardband_check::check_workspace(&root, &[path.to_path_buf()], &read).expect("check");
     let values = checked
         .model
         .nodes

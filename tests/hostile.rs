@@ -24,7 +24,7 @@ fn check_text(dir: &Path, name: &str, text: Vec<u8>) -> usize {
                     std::fs::read(p)
                 }
             };
-            guardband_rules::check_workspace(&dir, std::slice::from_ref(&path), &read)
+            guardband_check::check_workspace(&dir, std::slice::from_ref(&path), &read)
                 .expect("checks")
                 .diagnostics
                 .len()

@@ -159,7 +159,22 @@ impl Client {
         }
     }
 
-    /// Whether a message matching `want` arrives within `wait`.
+    /// Whether a message matching `want` arrives within `wait`, from now
+    /// on: messages that arrived earlier and were set aside do not count.
+    pub fn arrives_from_now_within(
+        &mut self,
+        wait: Duration,
+        want: impl Fn(&Value) -> bool,
+    ) -> Option<Value> {
+        let earlier = std::mem::take(&mut self.pending);
+        let found = self.next_within(wait, want).ok();
+        let later = std::mem::replace(&mut self.pending, earlier);
+        self.pending.extend(later);
+        found
+    }
+
+    /// Whether a message matching `want` arrives within `wait` (or arrived
+    /// earlier and was set aside).
     pub fn arrives_within(
         &mut self,
         wait: Duration,

@@ -31,7 +31,7 @@ fuzz_target!(|data: &[u8]| {
             Err(std::io::ErrorKind::NotFound.into())
         }
     };
-    let checked = guardband_rules::check_workspace(root, std::slice::from_ref(&spec), &read)
+    let checked = guardband_check::check_workspace(root, std::slice::from_ref(&spec), &read)
         .expect("the overlay provides the entry file");
     for d in &checked.diagnostics {
         let text = &checked.ws.file(d.file).text;

@@ -6,13 +6,12 @@
 
 use guardband_bench::generate;
 use guardband_lsp::documents::Document;
-use guardband_lsp::encoding::Encoding;
 use guardband_lsp::engine::Analysis;
 use guardband_lsp::features;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
-use tower_lsp_server::ls_types::{Position, Uri};
+use tower_lsp_server::ls_types::Uri;
 
 /// The allocator `guardband` itself uses, so that the figures are the command's.
 #[global_allocator]
@@ -67,7 +66,7 @@ fn full_check(
             .cloned()
             .ok_or_else(|| std::io::ErrorKind::NotFound.into())
     };
-    let checked = guardband_rules::check_each(root, entries, &read, threads, STACK).expect("check");
+    let checked = guardband_check::check_each(root, entries, &read, threads, STACK).expect("check");
     let items: Vec<serde_json::Value> = checked
         .diagnostics
         .iter()
@@ -121,13 +120,13 @@ fn main() {
             let read = guardband_model::read_source;
             if whole {
                 // One model of everything, as the server and `report` hold it.
-                guardband_rules::check_workspace(&root, &entries, &read)
+                guardband_check::check_workspace(&root, &entries, &read)
                     .expect("check")
                     .diagnostics
                     .len()
             } else {
                 // As `guardband check` does it, on one thread.
-                guardband_rules::check_each(&root, &entries, &read, 1, STACK)
+                guardband_check::check_each(&root, &entries, &read, 1, STACK)
                     .expect("check")
                     .diagnostics
                     .len()
@@ -152,6 +151,7 @@ fn main() {
         "JSON MB/s",
         "ratio"
     );
+    let mut parse_before = Vec::new();
     for n in [100usize, 1_000, 10_000] {
         let g = generate(&base.join(format!("n{n}")), n, (n / 50).max(1)).expect("generate");
         let files = overlay(&g.root);
@@ -172,6 +172,23 @@ fn main() {
                 .map(|t| guardband_syntax::parse(t).file.items.len())
                 .sum::<usize>()
         });
+        // The hand-written quick pass this replaced, on the same tokens.
+        let before = time(runs, || {
+            texts
+                .iter()
+                .map(|t| {
+                    let (tokens, _) = guardband_syntax::lex(t);
+                    guardband_bench::quick_pass_before::parse_clean(t, &tokens, 48)
+                        .map(|i| i.len())
+                        .unwrap_or(0)
+                })
+                .sum::<usize>()
+        });
+        parse_before.push((
+            n,
+            mb_per_s(g.spec_bytes, before),
+            mb_per_s(g.spec_bytes, parse),
+        ));
         let (root, entries) = (g.root.clone(), g.entries.clone());
         let files_for_check = files.clone();
         let check =
@@ -192,6 +209,20 @@ fn main() {
         );
     }
     println!("(ratio = full check time / time to parse the JSON twin of the same facts)");
+    println!();
+    println!(
+        "parse, lexing included: the one chumsky grammar's quick path against the hand-written quick pass it replaced"
+    );
+    for (n, before, after) in &parse_before {
+        println!(
+            "{n:>7} regulators: hand-written pass {before:.1} MB/s, chumsky quick path {after:.1} MB/s ({})",
+            if after >= before {
+                "at least as fast: met"
+            } else {
+                "slower: not met"
+            }
+        );
+    }
     println!();
 
     // A folder of 2,000 files, one regulator each, each file its own check.
@@ -252,19 +283,11 @@ fn main() {
         });
         let analysis = Analysis::compute(&root, std::slice::from_ref(&doc)).expect("analysis");
         let file = analysis.file_id(&path).expect("file");
-        let index = &analysis.checked.ws.file(file).line_index;
         let threshold = at + doc.text[at..].find("threshold").expect("threshold");
-        let position = Encoding::Utf16.position(index, threshold);
-        let hover = time(1_001, || {
-            features::hover::hover(&analysis, file, position, Encoding::Utf16)
-        });
+        let line_start = doc.text[..threshold].rfind('\n').map_or(0, |i| i + 1);
+        let hover = time(1_001, || features::hover::hover(&analysis, file, threshold));
         let completion = time(1_001, || {
-            features::complete::complete(
-                &analysis,
-                file,
-                Position::new(position.line, 0),
-                Encoding::Utf16,
-            )
+            features::complete::complete(&analysis, file, line_start)
         });
         (recheck, hover, completion)
     });

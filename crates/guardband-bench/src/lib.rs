@@ -4,6 +4,8 @@
 //! facts, so the cost of a check can be compared with the cost of merely
 //! parsing the same information as JSON.
 
+pub mod quick_pass_before;
+
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
 
@@ -238,7 +240,7 @@ mod tests {
         let dir = std::env::temp_dir().join(format!("guardband-gen-test-{}", std::process::id()));
         let g = generate(&dir, 6, 2).expect("generate");
         let checked =
-            guardband_rules::check_workspace(&g.root, &g.entries, &guardband_model::read_source)
+            guardband_check::check_workspace(&g.root, &g.entries, &guardband_model::read_source)
                 .expect("check");
         let problems: Vec<String> = checked
             .diagnostics

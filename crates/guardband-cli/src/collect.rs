@@ -1,4 +1,4 @@
-//! Finding the files to check and the workspace root.
+//! Finding the files to check.
 //!
 //! Only regular files inside the workspace root are taken. A link that
 //! leads outside the root, dangles or loops, a link to a folder, and
@@ -188,36 +188,5 @@ fn walk(dir: &Path, root: &Path, found: &mut Found, depth: usize) {
             None => found.files.push(path),
             Some(why) => found.skipped.push(why),
         }
-    }
-}
-
-/// The nearest folder at or above `start` holding `guardband.toml`; else
-/// `cwd` when `start` is inside it, else the folder `start` names (or holds).
-pub fn workspace_root(start: &Path, cwd: &Path) -> PathBuf {
-    let start = if start.is_absolute() {
-        start.to_path_buf()
-    } else {
-        cwd.join(start)
-    };
-    let mut dir = if start.is_dir() {
-        Some(start.as_path())
-    } else {
-        start.parent()
-    };
-    let own = dir.map(Path::to_path_buf);
-    while let Some(d) = dir {
-        if d.join("guardband.toml").is_file() {
-            return d.to_path_buf();
-        }
-        dir = d.parent();
-    }
-    let inside = |p: &Path| {
-        let p = p.canonicalize().unwrap_or_else(|_| p.to_path_buf());
-        let c = cwd.canonicalize().unwrap_or_else(|_| cwd.to_path_buf());
-        p.starts_with(c)
-    };
-    match own {
-        Some(d) if !inside(&d) => d,
-        _ => cwd.to_path_buf(),
     }
 }

@@ -105,17 +105,13 @@ enum Command {
     },
 }
 
-/// Stack for the checking thread: evaluation recurses over expression trees,
-/// whose depth the parser bounds; this leaves ample room for that bound.
-const STACK_BYTES: usize = 256 * 1024 * 1024;
-
 fn main() -> ExitCode {
     std::panic::set_hook(Box::new(|info| {
         eprintln!("guardband: internal error: {info}");
         eprintln!("guardband: this is a bug; please report it with the input that caused it");
     }));
     let worker = std::thread::Builder::new()
-        .stack_size(STACK_BYTES)
+        .stack_size(guardband_check::STACK_BYTES)
         .spawn(run);
     match worker.map(|handle| handle.join()) {
         Ok(Ok(code)) => code,
@@ -173,12 +169,12 @@ fn check(
     });
     // Each file is checked on its own and dropped once its findings are
     // kept, so memory stays bounded however many files there are.
-    let checked = match guardband_rules::check_each(
+    let checked = match guardband_check::check_each(
         &root,
         &files,
         &guardband_model::read_source,
         threads,
-        STACK_BYTES,
+        guardband_check::STACK_BYTES,
     ) {
         Ok(c) => c,
         Err((path, e)) => {
@@ -254,7 +250,12 @@ fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> 
         }
     };
     let first = paths.first().cloned().unwrap_or_else(|| cwd.clone());
-    let root = collect::workspace_root(&first, &cwd);
+    let first = if first.is_absolute() {
+        first
+    } else {
+        cwd.join(first)
+    };
+    let root = guardband_check::workspace_root(&first, std::slice::from_ref(&cwd));
     let canonical_root = root.canonicalize().unwrap_or_else(|_| root.clone());
     let (_, found) = collect::files_or(paths, cwd.clone(), &canonical_root).map_err(|msg| {
         eprintln!("guardband: {msg}");
@@ -267,9 +268,9 @@ fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> 
 /// Finds the files under `paths` and runs the whole check on them as one
 /// workspace (the model is kept, for the report); on a usage or I/O failure
 /// prints why and returns the exit code.
-fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_rules::Checked, ExitCode> {
+fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_check::Checked, ExitCode> {
     let (root, files) = find_files(paths)?;
-    match guardband_rules::check_workspace(&root, &files, &guardband_model::read_source) {
+    match guardband_check::check_workspace(&root, &files, &guardband_model::read_source) {
         Ok(c) => Ok(c),
         Err((path, e)) => {
             eprintln!("guardband: cannot read {}: {e}", path.display());

@@ -5,7 +5,7 @@
 //! analyses read copies of this state, so they can never lose an edit.
 
 use crate::encoding::Encoding;
-use crate::engine::root_for;
+use guardband_check::workspace_root as root_for;
 use guardband_syntax::LineIndex;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};

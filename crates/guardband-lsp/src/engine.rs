@@ -3,15 +3,11 @@
 //! a large stack, with panics caught and turned into errors.
 
 use crate::documents::Document;
+use guardband_check::Checked;
 use guardband_model::{FileId, SourceFile};
-use guardband_rules::Checked;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::sync::{Arc, Mutex, mpsc};
-
-/// Stack of each worker: evaluation recurses over expression trees whose
-/// depth the parser bounds; the command line uses the same size.
-const STACK_BYTES: usize = 256 * 1024 * 1024;
 
 /// One check of the open documents under a workspace root.
 pub struct Analysis {
@@ -43,7 +39,7 @@ impl Analysis {
             .filter(|d| d.path.extension().is_some_and(|e| e == "guard"))
             .map(|d| d.path.clone())
             .collect();
-        let checked = guardband_rules::check_workspace(root, &entries, &read)
+        let checked = guardband_check::check_workspace(root, &entries, &read)
             .map_err(|(p, e)| format!("cannot read {}: {e}", p.display()))?;
         Ok(Analysis {
             root: root.to_path_buf(),
@@ -90,25 +86,6 @@ impl Analysis {
     }
 }
 
-/// The workspace root of a file: the nearest folder holding
-/// `guardband.toml`, else the client's workspace folder that contains it,
-/// else the file's own folder.
-pub fn root_for(path: &Path, folders: &[PathBuf]) -> PathBuf {
-    let mut dir = path.parent();
-    while let Some(d) = dir {
-        if d.join("guardband.toml").is_file() {
-            return d.to_path_buf();
-        }
-        dir = d.parent();
-    }
-    folders
-        .iter()
-        .filter(|f| path.starts_with(f))
-        .max_by_key(|f| f.as_os_str().len())
-        .cloned()
-        .unwrap_or_else(|| path.parent().map(Path::to_path_buf).unwrap_or_default())
-}
-
 type Job = Box<dyn FnOnce() + Send>;
 
 /// A small pool of big-stack threads that run engine work off the async runtime.
@@ -125,7 +102,7 @@ impl Workers {
             let receiver = Arc::clone(&receiver);
             let spawned = std::thread::Builder::new()
                 .name(format!("guardband-engine-{i}"))
-                .stack_size(STACK_BYTES)
+                .stack_size(guardband_check::STACK_BYTES)
                 .spawn(move || {
                     loop {
                         let job = match receiver.lock() {

@@ -3,7 +3,7 @@
 //! any LSP editor.
 //!
 //! The server is a thin layer: every analysis is the same
-//! [`guardband_rules::check_workspace`] that `guardband check` runs, on the
+//! [`guardband_check::check_workspace`] that `guardband check` runs, on the
 //! text of the editor's buffers, so the editor and the command line cannot
 //! disagree. See `DEVELOPERS.md` for the threading model.
 

@@ -83,6 +83,9 @@ pub struct Backend {
     state: Arc<Mutex<State>>,
     workers: Arc<Workers>,
     shutdown: Arc<AtomicBool>,
+    /// Held while diagnostics are sent, so that a check that finishes late
+    /// cannot send an older version after a newer one.
+    publishing: Arc<tokio::sync::Mutex<()>>,
 }
 
 /// Most roots the server keeps analyses for; older ones are dropped.
@@ -96,6 +99,7 @@ impl Backend {
             state: Arc::new(Mutex::new(State::default())),
             workers: Workers::start(2),
             shutdown,
+            publishing: Arc::new(tokio::sync::Mutex::new(())),
         }
     }
 
@@ -221,6 +225,51 @@ impl Backend {
         }
     }
 
+    /// [`Backend::query`] at an LSP position, converted (in the negotiated
+    /// encoding) to the byte offset the features take: together with
+    /// [`Backend::query_within`], the one place positions are read.
+    async fn query_at<T: Send + 'static>(
+        &self,
+        uri: &Uri,
+        position: Position,
+        work: impl FnOnce(&Analysis, guardband_model::FileId, usize, Encoding, Settings) -> T
+        + Send
+        + 'static,
+    ) -> Result<Option<T>> {
+        self.query(uri, move |a, file, encoding, settings| {
+            let at = encoding.offset(&a.checked.ws.file(file).line_index, position);
+            work(a, file, at, encoding, settings)
+        })
+        .await
+    }
+
+    /// [`Backend::query`] over an LSP range, converted to a byte span
+    /// (start before end, whichever order the client sent).
+    async fn query_within<T: Send + 'static>(
+        &self,
+        uri: &Uri,
+        range: Range,
+        work: impl FnOnce(
+            &Analysis,
+            guardband_model::FileId,
+            std::ops::Range<usize>,
+            Encoding,
+            Settings,
+        ) -> T
+        + Send
+        + 'static,
+    ) -> Result<Option<T>> {
+        self.query(uri, move |a, file, encoding, settings| {
+            let index = &a.checked.ws.file(file).line_index;
+            let (x, y) = (
+                encoding.offset(index, range.start),
+                encoding.offset(index, range.end),
+            );
+            work(a, file, x.min(y)..x.max(y), encoding, settings)
+        })
+        .await
+    }
+
     /// Schedules a debounced check of `root`.
     fn schedule(&self, root: PathBuf) {
         let (generation, delay) = {
@@ -254,6 +303,7 @@ impl Backend {
             state: Arc::clone(&self.state),
             workers: Arc::clone(&self.workers),
             shutdown: Arc::clone(&self.shutdown),
+            publishing: Arc::clone(&self.publishing),
         }
     }
 
@@ -316,7 +366,19 @@ impl Backend {
                 }
             }
         }
+        // Checked again under the lock: a newer version may have been
+        // published since the batches were made.
+        let _publishing = self.publishing.lock().await;
+        let now: HashMap<Uri, i32> = self
+            .state()
+            .docs
+            .all()
+            .map(|d| (d.uri.clone(), d.version))
+            .collect();
         for (uri, diagnostics, version) in batches {
+            if version.is_some_and(|v| now.get(&uri) != Some(&v)) {
+                continue;
+            }
             self.client
                 .publish_diagnostics(uri, diagnostics, version)
                 .await;
@@ -611,8 +673,8 @@ impl LanguageServer for Backend {
     async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
         let p = params.text_document_position_params;
         Ok(self
-            .query(&p.text_document.uri, move |a, file, enc, _| {
-                features::hover::hover(a, file, p.position, enc)
+            .query_at(&p.text_document.uri, p.position, |a, file, at, _, _| {
+                features::hover::hover(a, file, at)
             })
             .await?
             .flatten())
@@ -624,8 +686,8 @@ impl LanguageServer for Backend {
     ) -> Result<Option<GotoDefinitionResponse>> {
         let p = params.text_document_position_params;
         Ok(self
-            .query(&p.text_document.uri, move |a, file, enc, _| {
-                features::navigate::definition(a, file, p.position, enc)
+            .query_at(&p.text_document.uri, p.position, |a, file, at, enc, _| {
+                features::navigate::definition(a, file, at, enc)
             })
             .await?
             .flatten()
@@ -636,9 +698,13 @@ impl LanguageServer for Backend {
         let p = params.text_document_position;
         let include = params.context.include_declaration;
         Ok(self
-            .query(&p.text_document.uri, move |a, file, enc, _| {
-                features::navigate::references(a, file, p.position, include, enc)
-            })
+            .query_at(
+                &p.text_document.uri,
+                p.position,
+                move |a, file, at, enc, _| {
+                    features::navigate::references(a, file, at, include, enc)
+                },
+            )
             .await?
             .flatten())
     }
@@ -648,9 +714,11 @@ impl LanguageServer for Backend {
         params: TextDocumentPositionParams,
     ) -> Result<Option<PrepareRenameResponse>> {
         Ok(self
-            .query(&params.text_document.uri, move |a, file, enc, _| {
-                features::navigate::prepare_rename(a, file, params.position, enc)
-            })
+            .query_at(
+                &params.text_document.uri,
+                params.position,
+                |a, file, at, enc, _| features::navigate::prepare_rename(a, file, at, enc),
+            )
             .await?
             .flatten())
     }
@@ -659,9 +727,11 @@ impl LanguageServer for Backend {
         let p = params.text_document_position;
         let new_name = params.new_name;
         match self
-            .query(&p.text_document.uri, move |a, file, enc, _| {
-                features::navigate::rename(a, file, p.position, &new_name, enc)
-            })
+            .query_at(
+                &p.text_document.uri,
+                p.position,
+                move |a, file, at, enc, _| features::navigate::rename(a, file, at, &new_name, enc),
+            )
             .await?
         {
             None => Ok(None),
@@ -673,8 +743,8 @@ impl LanguageServer for Backend {
     async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
         let p = params.text_document_position;
         Ok(self
-            .query(&p.text_document.uri, move |a, file, enc, _| {
-                features::complete::complete(a, file, p.position, enc)
+            .query_at(&p.text_document.uri, p.position, |a, file, at, _, _| {
+                features::complete::complete(a, file, at)
             })
             .await?
             .map(CompletionResponse::Array))
@@ -728,19 +798,21 @@ impl LanguageServer for Backend {
         &self,
         params: SemanticTokensRangeParams,
     ) -> Result<Option<SemanticTokensRangeResult>> {
-        let range = params.range;
         Ok(self
-            .query(&params.text_document.uri, move |a, file, enc, _| {
-                features::tokens::tokens(a, file, Some(range), enc)
-            })
+            .query_within(
+                &params.text_document.uri,
+                params.range,
+                |a, file, within, enc, _| features::tokens::tokens(a, file, Some(within), enc),
+            )
             .await?
             .map(SemanticTokensRangeResult::Tokens))
     }
 
     async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
         let uri = params.text_document.uri.clone();
-        self.query(&uri, move |a, file, enc, _| {
-            features::actions::code_actions(a, file, &params, enc)
+        let range = params.range;
+        self.query_within(&uri, range, move |a, file, within, enc, _| {
+            features::actions::code_actions(a, file, within, &params, enc)
         })
         .await
     }
@@ -756,21 +828,24 @@ impl LanguageServer for Backend {
         let encoding = self.state().encoding;
         let edits = self
             .workers
-            .run(move || features::format::edits(&text, encoding))
+            .run(move || features::formatting::edits(&text, encoding))
             .await
             .map_err(|_| Error::internal_error())?;
         Ok(edits)
     }
 
     async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
-        let range = params.range;
-        self.query(&params.text_document.uri, move |a, file, enc, settings| {
-            if settings.inlay_hints {
-                features::inlay::hints(a, file, range, enc)
-            } else {
-                Vec::new()
-            }
-        })
+        self.query_within(
+            &params.text_document.uri,
+            params.range,
+            |a, file, within, enc, settings| {
+                if settings.inlay_hints {
+                    features::inlay::hints(a, file, within, enc)
+                } else {
+                    Vec::new()
+                }
+            },
+        )
         .await
     }
 }

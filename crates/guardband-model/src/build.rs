@@ -47,15 +47,70 @@ fn header_span(block: &Block) -> guardband_syntax::Span {
     block.keyword.span.start..end
 }
 
-fn add_block<'b>(
+/// Adds `block` (and, recursively, its children) as a node of `spec`'s
+/// kind under `parent`: checks its name, then each member against the
+/// schema and against the members before it.
+fn add_block(
     model: &mut Model,
     file: FileId,
     spec: &'static BlockSpec,
-    block: &'b Block,
+    block: &Block,
     parent: Option<NodeId>,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> NodeId {
-    let id = NodeId(model.nodes.len() as u32);
+    check_name(file, spec, block, diagnostics);
+    let id = push_node(model, file, spec, block, parent);
+    let mut taken = Taken::with_capacity(block.members.len());
+    for member in &block.members {
+        match member {
+            Member::Error(_) => {}
+            Member::Field(f) => {
+                let name = f.name.as_ref().map(|n| n.text.as_str());
+                let Some(field_spec) = schema::field_spec(spec.kind, &f.keyword.text, name) else {
+                    diagnostics.push(unknown_field(file, spec, f));
+                    continue;
+                };
+                if let Some(d) = wrong_relation(file, field_spec, f) {
+                    diagnostics.push(d);
+                    continue;
+                }
+                if let Some(d) = taken.second(file, (&f.keyword.text, name), &f.key().span, true) {
+                    diagnostics.push(d);
+                    continue;
+                }
+                model.nodes[id.0 as usize].fields.push(Field {
+                    keyword: f.keyword.text.clone(),
+                    name: name.map(Into::into),
+                    key: f.key().text.clone(),
+                    key_span: f.key().span.clone(),
+                    relation: f.relation,
+                    expr: f.value.clone(),
+                    span: f.span.clone(),
+                    spec: field_spec,
+                    value: None,
+                });
+            }
+            Member::Block(b) => {
+                let Some(child) = schema::child_spec(Some(spec.kind), &b.keyword.text) else {
+                    diagnostics.push(unknown_block(file, spec, b));
+                    continue;
+                };
+                if let Some(d) =
+                    taken.second(file, (&b.key().text, None), &b.key().span, !child.named)
+                {
+                    diagnostics.push(d);
+                    continue;
+                }
+                let child_id = add_block(model, file, child, b, Some(id), diagnostics);
+                model.nodes[id.0 as usize].children.push(child_id);
+            }
+        }
+    }
+    id
+}
+
+/// A named kind without a name, or an unnamed kind with one.
+fn check_name(file: FileId, spec: &BlockSpec, block: &Block, diagnostics: &mut Vec<Diagnostic>) {
     if spec.named && block.name.is_none() {
         diagnostics.push(
             Diagnostic::error(
@@ -85,6 +140,18 @@ fn add_block<'b>(
             )),
         );
     }
+}
+
+/// Pushes the node for `block`, with its dotted path, and no fields or
+/// children yet.
+fn push_node(
+    model: &mut Model,
+    file: FileId,
+    spec: &BlockSpec,
+    block: &Block,
+    parent: Option<NodeId>,
+) -> NodeId {
+    let id = NodeId(model.nodes.len() as u32);
     let key = block
         .name
         .as_ref()
@@ -123,107 +190,90 @@ fn add_block<'b>(
         children: Vec::new(),
         path,
     });
-    // Keys already taken in this block (keyword, and name of a named
-    // field), with where, for duplicate checks; borrowed from the tree.
-    let mut taken: rustc_hash::FxHashMap<(&str, Option<&str>), guardband_syntax::Span> =
-        Default::default();
-    taken.reserve(block.members.len());
-    let mut check_duplicate = |key: (&'b str, Option<&'b str>),
-                               span: &guardband_syntax::Span,
-                               what: &str,
-                               diagnostics: &mut Vec<Diagnostic>|
-     -> bool {
-        if let Some(first) = taken.get(&key) {
-            let key = match key {
-                (k, Some(n)) => format!("{k} {n}"),
-                (k, None) => k.to_string(),
-            };
-            let rule = if what == "field" {
-                "duplicate-field"
-            } else {
-                "duplicate-name"
-            };
-            diagnostics.push(
-                Diagnostic::error(
-                    rule,
-                    file,
-                    span.clone(),
-                    format!("`{key}` is given twice in this block"),
-                )
-                .primary("second definition")
-                .label(file, first.clone(), "first defined here")
-                .help("remove one of them; a spec states each thing once"),
-            );
-            return true;
-        }
-        taken.insert(key, span.clone());
-        false
-    };
-    for member in &block.members {
-        match member {
-            Member::Error(_) => {}
-            Member::Field(f) => {
-                let name = f.name.as_ref().map(|n| n.text.as_str());
-                let Some(field_spec) = schema::field_spec(spec.kind, &f.keyword.text, name) else {
-                    diagnostics.push(unknown_field(file, spec, f));
-                    continue;
-                };
-                if field_spec.requirement == (f.relation == Relation::Assign) {
-                    let msg = if field_spec.requirement {
-                        format!(
-                            "`{} {}` states a bound; use `<=`, `>=`, `<` or `>`",
-                            f.keyword.text,
-                            name.unwrap_or("")
-                        )
-                    } else {
-                        format!(
-                            "`{}` is set with `=`, not `{}`",
-                            f.keyword.text,
-                            f.relation.symbol()
-                        )
-                    };
-                    diagnostics.push(
-                        Diagnostic::error(
-                            "syntax",
-                            file,
-                            f.keyword.span.start..f.value.span.start,
-                            msg,
-                        )
-                        .primary("wrong relation"),
-                    );
-                    continue;
-                }
-                if check_duplicate((&f.keyword.text, name), &f.key().span, "field", diagnostics) {
-                    continue;
-                }
-                let node = &mut model.nodes[id.0 as usize];
-                node.fields.push(Field {
-                    keyword: f.keyword.text.clone(),
-                    name: name.map(Into::into),
-                    key: f.key().text.clone(),
-                    key_span: f.key().span.clone(),
-                    relation: f.relation,
-                    expr: f.value.clone(),
-                    span: f.span.clone(),
-                    spec: field_spec,
-                    value: None,
-                });
-            }
-            Member::Block(b) => {
-                let Some(child) = schema::child_spec(Some(spec.kind), &b.keyword.text) else {
-                    diagnostics.push(unknown_block(file, spec, b));
-                    continue;
-                };
-                let what = if child.named { "name" } else { "field" };
-                if check_duplicate((&b.key().text, None), &b.key().span, what, diagnostics) {
-                    continue;
-                }
-                let child_id = add_block(model, file, child, b, Some(id), diagnostics);
-                model.nodes[id.0 as usize].children.push(child_id);
-            }
-        }
-    }
     id
+}
+
+/// A field set with `=` that states a bound, or a bound written with `=`.
+fn wrong_relation(
+    file: FileId,
+    field_spec: &schema::FieldSpec,
+    f: &guardband_syntax::Statement,
+) -> Option<Diagnostic> {
+    if field_spec.requirement != (f.relation == Relation::Assign) {
+        return None;
+    }
+    let name = f.name.as_ref().map(|n| n.text.as_str());
+    let msg = if field_spec.requirement {
+        format!(
+            "`{} {}` states a bound; use `<=`, `>=`, `<` or `>`",
+            f.keyword.text,
+            name.unwrap_or("")
+        )
+    } else {
+        format!(
+            "`{}` is set with `=`, not `{}`",
+            f.keyword.text,
+            f.relation.symbol()
+        )
+    };
+    Some(
+        Diagnostic::error(
+            "syntax",
+            file,
+            f.keyword.span.start..f.value.span.start,
+            msg,
+        )
+        .primary("wrong relation"),
+    )
+}
+
+/// The keys already taken in one block (keyword, and name of a named
+/// field), with where, borrowed from the tree.
+struct Taken<'b> {
+    seen: rustc_hash::FxHashMap<(&'b str, Option<&'b str>), guardband_syntax::Span>,
+}
+
+impl<'b> Taken<'b> {
+    fn with_capacity(n: usize) -> Self {
+        let mut seen = rustc_hash::FxHashMap::default();
+        seen.reserve(n);
+        Taken { seen }
+    }
+
+    /// Takes `key`; when it was taken before, the error saying so (a
+    /// field given twice when `field`, else a name used twice).
+    fn second(
+        &mut self,
+        file: FileId,
+        key: (&'b str, Option<&'b str>),
+        span: &guardband_syntax::Span,
+        field: bool,
+    ) -> Option<Diagnostic> {
+        let Some(first) = self.seen.get(&key) else {
+            self.seen.insert(key, span.clone());
+            return None;
+        };
+        let shown = match key {
+            (k, Some(n)) => format!("{k} {n}"),
+            (k, None) => k.to_string(),
+        };
+        let rule = if field {
+            "duplicate-field"
+        } else {
+            "duplicate-name"
+        };
+        Some(
+            Diagnostic::error(
+                rule,
+                file,
+                span.clone(),
+                format!("`{shown}` is given twice in this block"),
+            )
+            .primary("second definition")
+            .label(file, first.clone(), "first defined here")
+            .help("remove one of them; a spec states each thing once"),
+        )
+    }
 }
 
 fn field_words(spec: &BlockSpec) -> Vec<&'static str> {
@@ -233,7 +283,7 @@ fn field_words(spec: &BlockSpec) -> Vec<&'static str> {
     words
 }
 
-fn unknown_field(file: FileId, spec: &BlockSpec, f: &guardband_syntax::Field) -> Diagnostic {
+fn unknown_field(file: FileId, spec: &BlockSpec, f: &guardband_syntax::Statement) -> Diagnostic {
     let keyword = f.keyword.text.as_str();
     let names: Vec<&str> = spec
         .fields

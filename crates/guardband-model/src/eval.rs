@@ -528,23 +528,7 @@ impl<'a> Evaluator<'a> {
     /// Evaluates an expression to a quantity; `key` labels stated tolerances.
     fn quantity(&mut self, node: NodeId, expr: &Expr, key: &str) -> Option<Value> {
         let file = self.file_of(node);
-        self.steps += 1;
-        if self.steps > self.max_steps {
-            if self.steps == self.max_steps + 1 {
-                self.push(
-                    Diagnostic::error(
-                        "limit",
-                        file,
-                        expr.span.clone(),
-                        format!(
-                            "evaluation stopped after {} steps; the rest of the workspace is not evaluated",
-                            self.max_steps
-                        ),
-                    )
-                    .primary("the limit was reached here")
-                    .help("raise `max_eval_steps` under `[limits]` in guardband.toml, or split the workspace"),
-                );
-            }
+        if !self.take_step(file, expr) {
             return None;
         }
         match &expr.kind {
@@ -569,68 +553,8 @@ impl<'a> Evaluator<'a> {
                     .map_err(|e| self.value_error(file, expr.span.clone(), e, &[(inner, &v)]))
                     .ok()
             }
-            ExprKind::Binary(op, a, b) => {
-                let va = self.quantity(node, a, key)?;
-                let vb = self.quantity(node, b, key)?;
-                let r = match op {
-                    BinaryOp::Add => va.add(&vb),
-                    BinaryOp::Sub => va.sub(&vb),
-                    BinaryOp::Mul => va.mul(&vb),
-                    BinaryOp::Div => va.div(&vb),
-                };
-                match r {
-                    Ok(v) => Some(v),
-                    Err(e) => {
-                        let mismatch = matches!(e, ValueError::Mismatch { .. });
-                        self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)]);
-                        if mismatch && *op == BinaryOp::Add {
-                            self.plus_minus_hint(file, a, b);
-                        }
-                        None
-                    }
-                }
-            }
-            ExprKind::Range(a, b) => {
-                let lo = self.quantity(node, a, key)?;
-                let hi = self.quantity(node, b, key)?;
-                if !lo.kind.fits(hi.kind) {
-                    let err = ValueError::Mismatch {
-                        left: lo.kind,
-                        right: hi.kind,
-                    };
-                    self.value_error(file, expr.span.clone(), err, &[(a, &lo), (b, &hi)]);
-                    self.unit_on_one_end(file, a, b);
-                    let charge = guardband_units::Dimension::CHARGE;
-                    if lo.kind.dim == charge && hi.kind.is_temperature() {
-                        self.coulomb_hint(a);
-                    } else if hi.kind.dim == charge && lo.kind.is_temperature() {
-                        self.coulomb_hint(b);
-                    }
-                    return None;
-                }
-                if lo.nom > hi.nom {
-                    self.push(
-                        Diagnostic::error(
-                            "invalid-value",
-                            file,
-                            expr.span.clone(),
-                            "this range runs backwards",
-                        )
-                        .primary("the low end is above the high end")
-                        .help("write the smaller value first: `low .. high`"),
-                    );
-                    return None;
-                }
-                let kind = if lo.kind.temp == TempSense::Either {
-                    hi.kind
-                } else {
-                    lo.kind
-                };
-                let id = self.new_source(node, key, file, expr.span.clone(), Spread::Range);
-                let mut v = Value::range(kind, lo.lo, hi.hi, id);
-                v.unit = lo.unit.clone().or(hi.unit.clone());
-                Some(v)
-            }
+            ExprKind::Binary(op, a, b) => self.binary(node, expr, *op, (a, b), key),
+            ExprKind::Range(a, b) => self.range(node, expr, (a, b), key),
             ExprKind::Tolerance {
                 base,
                 plus,
@@ -646,57 +570,173 @@ impl<'a> Evaluator<'a> {
                 key,
             ),
             ExprKind::Call(name, args) => self.call(node, expr, name, args, key),
-            ExprKind::Path(path) => match self.resolve(node, path, false)? {
-                Target::Field(n, i, corner) => {
-                    let value = self.field(n, i)?;
-                    match value {
-                        FieldValue::Quantity(v) => Some(match corner {
-                            Some(c) => v.corner(c),
-                            None => self.with_own_local_parts(node, key, file, &expr.span, v),
-                        }),
-                        _ => {
-                            self.push(
-                                Diagnostic::error(
-                                    "unit-mismatch",
-                                    file,
-                                    expr.span.clone(),
-                                    format!("`{}` is not a quantity", self.text(file, &expr.span)),
-                                )
-                                .primary("this names a word, flag or reference"),
-                            );
-                            None
-                        }
-                    }
+            ExprKind::Path(path) => self.path_quantity(node, expr, path, key),
+        }
+    }
+
+    /// Counts one evaluation step; false (after one error saying so) once
+    /// the budget of `max_eval_steps` is spent.
+    fn take_step(&mut self, file: FileId, expr: &Expr) -> bool {
+        self.steps += 1;
+        if self.steps <= self.max_steps {
+            return true;
+        }
+        if self.steps == self.max_steps + 1 {
+            self.push(
+                Diagnostic::error(
+                    "limit",
+                    file,
+                    expr.span.clone(),
+                    format!(
+                        "evaluation stopped after {} steps; the rest of the workspace is not evaluated",
+                        self.max_steps
+                    ),
+                )
+                .primary("the limit was reached here")
+                .help("raise `max_eval_steps` under `[limits]` in guardband.toml, or split the workspace"),
+            );
+        }
+        false
+    }
+
+    /// `a + b`, `a - b`, `a * b`, `a / b`, with the `+-` hint on a mismatch.
+    fn binary(
+        &mut self,
+        node: NodeId,
+        expr: &Expr,
+        op: BinaryOp,
+        (a, b): (&Expr, &Expr),
+        key: &str,
+    ) -> Option<Value> {
+        let file = self.file_of(node);
+        let va = self.quantity(node, a, key)?;
+        let vb = self.quantity(node, b, key)?;
+        let r = match op {
+            BinaryOp::Add => va.add(&vb),
+            BinaryOp::Sub => va.sub(&vb),
+            BinaryOp::Mul => va.mul(&vb),
+            BinaryOp::Div => va.div(&vb),
+        };
+        match r {
+            Ok(v) => Some(v),
+            Err(e) => {
+                let mismatch = matches!(e, ValueError::Mismatch { .. });
+                self.value_error(file, expr.span.clone(), e, &[(a, &va), (b, &vb)]);
+                if mismatch && op == BinaryOp::Add {
+                    self.plus_minus_hint(file, a, b);
                 }
-                Target::Node(n) => {
-                    let target = self.model.node(n);
-                    let fields: Vec<String> = target
-                        .fields
-                        .iter()
-                        .take(3)
-                        .map(|f| format!("`{}.{}`", target.key(), f.key))
-                        .collect();
-                    let mut d = Diagnostic::error(
-                        "invalid-value",
-                        file,
-                        expr.span.clone(),
-                        format!(
-                            "`{}` is a {} block, not a value",
-                            target.key(),
-                            target.keyword
-                        ),
-                    )
-                    .primary("names a block");
-                    if !fields.is_empty() {
-                        d = d.help(format!(
-                            "name one of its fields, e.g. {}",
-                            fields.join(", ")
-                        ));
-                    }
-                    self.push(d);
+                None
+            }
+        }
+    }
+
+    /// `lo .. hi`: one source of spread, ends of one kind, low end first.
+    fn range(
+        &mut self,
+        node: NodeId,
+        expr: &Expr,
+        (a, b): (&Expr, &Expr),
+        key: &str,
+    ) -> Option<Value> {
+        let file = self.file_of(node);
+        let lo = self.quantity(node, a, key)?;
+        let hi = self.quantity(node, b, key)?;
+        if !lo.kind.fits(hi.kind) {
+            let err = ValueError::Mismatch {
+                left: lo.kind,
+                right: hi.kind,
+            };
+            self.value_error(file, expr.span.clone(), err, &[(a, &lo), (b, &hi)]);
+            self.unit_on_one_end(file, a, b);
+            let charge = guardband_units::Dimension::CHARGE;
+            if lo.kind.dim == charge && hi.kind.is_temperature() {
+                self.coulomb_hint(a);
+            } else if hi.kind.dim == charge && lo.kind.is_temperature() {
+                self.coulomb_hint(b);
+            }
+            return None;
+        }
+        if lo.nom > hi.nom {
+            self.push(
+                Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    expr.span.clone(),
+                    "this range runs backwards",
+                )
+                .primary("the low end is above the high end")
+                .help("write the smaller value first: `low .. high`"),
+            );
+            return None;
+        }
+        let kind = if lo.kind.temp == TempSense::Either {
+            hi.kind
+        } else {
+            lo.kind
+        };
+        let id = self.new_source(node, key, file, expr.span.clone(), Spread::Range);
+        let mut v = Value::range(kind, lo.lo, hi.hi, id);
+        v.unit = lo.unit.clone().or(hi.unit.clone());
+        Some(v)
+    }
+
+    /// A name used as a quantity: a field's value (or one of its corners);
+    /// a block or a non-quantity field is an error saying what it names.
+    fn path_quantity(
+        &mut self,
+        node: NodeId,
+        expr: &Expr,
+        path: &[Ident],
+        key: &str,
+    ) -> Option<Value> {
+        let file = self.file_of(node);
+        match self.resolve(node, path, false)? {
+            Target::Field(n, i, corner) => match self.field(n, i)? {
+                FieldValue::Quantity(v) => Some(match corner {
+                    Some(c) => v.corner(c),
+                    None => self.with_own_local_parts(node, key, file, &expr.span, v),
+                }),
+                _ => {
+                    self.push(
+                        Diagnostic::error(
+                            "unit-mismatch",
+                            file,
+                            expr.span.clone(),
+                            format!("`{}` is not a quantity", self.text(file, &expr.span)),
+                        )
+                        .primary("this names a word, flag or reference"),
+                    );
                     None
                 }
             },
+            Target::Node(n) => {
+                let target = self.model.node(n);
+                let fields: Vec<String> = target
+                    .fields
+                    .iter()
+                    .take(3)
+                    .map(|f| format!("`{}.{}`", target.key(), f.key))
+                    .collect();
+                let mut d = Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    expr.span.clone(),
+                    format!(
+                        "`{}` is a {} block, not a value",
+                        target.key(),
+                        target.keyword
+                    ),
+                )
+                .primary("names a block");
+                if !fields.is_empty() {
+                    d = d.help(format!(
+                        "name one of its fields, e.g. {}",
+                        fields.join(", ")
+                    ));
+                }
+                self.push(d);
+                None
+            }
         }
     }
 
@@ -1078,5 +1118,107 @@ impl<'a> Evaluator<'a> {
             n.fields.iter().map(|f| f.key.clone()).collect();
         names.extend(n.children.iter().map(|c| self.model.node(*c).key().into()));
         Err((offset, names))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! The evaluator on its own: one file, built and evaluated, the value
+    //! of one field read back. The figures are worked by hand beside each.
+
+    use crate::{Diagnostic, Model, Value, Workspace};
+
+    fn evaluate(text: &str) -> (Model, Vec<Diagnostic>) {
+        let mut ws = Workspace::default();
+        ws.push_file(
+            "t.guard".into(),
+            text.to_string(),
+            guardband_syntax::parse(text),
+        );
+        crate::check(&ws)
+    }
+
+    fn value<'m>(model: &'m Model, block: &str, key: &str) -> &'m Value {
+        model
+            .nodes
+            .iter()
+            .find(|n| n.path == block)
+            .and_then(|n| n.quantity(key))
+            .unwrap_or_else(|| panic!("{block}.{key} has no value"))
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs().max(1e-30)
+    }
+
+    #[test]
+    fn a_product_of_toleranced_values_is_bounded_at_its_corners() {
+        // 2000 × (100 uA ± 8 %): 184 mA .. 216 mA, nominal 200 mA.
+        let (model, diags) = evaluate(
+            "regulator r { limit l { ratio = 2000  reference = 100 uA ± 8 %  threshold = ratio * reference } }",
+        );
+        assert!(diags.is_empty(), "{diags:?}");
+        let v = value(&model, "r.l", "threshold");
+        assert!(
+            close(v.lo, 0.184) && close(v.nom, 0.2) && close(v.hi, 0.216),
+            "{v:?}"
+        );
+    }
+
+    #[test]
+    fn one_tolerance_used_twice_is_one_source_not_two() {
+        // r - r is exactly zero whatever r's tolerance; adding the ends of
+        // two independent ranges would give ± 20 mA instead.
+        let (model, diags) = evaluate(
+            "regulator r { limit l { reference = 100 mA ± 10 %  threshold = reference - reference } }",
+        );
+        assert!(diags.is_empty(), "{diags:?}");
+        let v = value(&model, "r.l", "threshold");
+        assert!(v.lo.abs() < 1e-15 && v.hi.abs() < 1e-15, "{v:?}");
+    }
+
+    #[test]
+    fn a_quotient_takes_the_opposite_corners() {
+        // (1 mA .. 2 mA) / (1 .. 4): lowest 1/4 = 0.25 mA, highest 2/1 = 2 mA.
+        let (model, diags) = evaluate(
+            "regulator r { limit l { reference = 1 mA .. 2 mA  ratio = 1 .. 4  threshold = reference / ratio } }",
+        );
+        assert!(diags.is_empty(), "{diags:?}");
+        let v = value(&model, "r.l", "threshold");
+        assert!(close(v.lo, 0.25e-3) && close(v.hi, 2e-3), "{v:?}");
+    }
+
+    #[test]
+    fn a_name_that_is_not_defined_gives_an_error_and_no_value() {
+        let (model, diags) = evaluate("regulator r { limit l { threshold = 2 * refernce }");
+        assert!(diags.iter().any(|d| d.rule == "unknown-name"), "{diags:?}");
+        let node = model.nodes.iter().find(|n| n.path == "r.l").expect("r.l");
+        assert!(node.quantity("threshold").is_none(), "unknown, not a guess");
+    }
+
+    #[test]
+    fn a_backwards_range_is_an_error_and_no_value() {
+        let (model, diags) = evaluate("regulator r { limit l { clamp_drive = 150 uA .. 80 uA }");
+        assert!(
+            diags.iter().any(|d| d.message.contains("runs backwards")),
+            "{diags:?}"
+        );
+        let node = model.nodes.iter().find(|n| n.path == "r.l").expect("r.l");
+        assert!(node.quantity("clamp_drive").is_none());
+    }
+
+    #[test]
+    fn the_step_budget_stops_evaluation_with_one_error() {
+        let mut ws = Workspace::default();
+        let text = "regulator r { limit l { ratio = 2  reference = 1 A  threshold = ratio * reference * ratio * reference } }";
+        ws.push_file("t.guard".into(), text.into(), guardband_syntax::parse(text));
+        let limits = crate::Limits {
+            max_eval_steps: 3,
+            ..Default::default()
+        };
+        let (_, diags) = crate::check_with(&ws, &limits);
+        let stopped: Vec<_> = diags.iter().filter(|d| d.rule == "limit").collect();
+        assert_eq!(stopped.len(), 1, "{diags:?}");
+        assert!(stopped[0].message.contains("after 3 steps"));
     }
 }

@@ -42,7 +42,7 @@ impl Workspace {
     }
 
     /// Appends a file with its display path and line index; returns its id.
-    fn push_file(&mut self, path: PathBuf, text: String, parse: Parse) -> FileId {
+    pub(crate) fn push_file(&mut self, path: PathBuf, text: String, parse: Parse) -> FileId {
         let id = FileId(self.files.len() as u32);
         let display = path
             .strip_prefix(&self.root)

@@ -143,7 +143,7 @@ pub fn chart(f: &Figures) -> Document {
                     .set("stroke-width", 1),
             )
             .add(
-                text(x, axis_y + 18.0, &guardband_rules::format::number(tick))
+                text(x, axis_y + 18.0, &guardband_rules::show::number(tick))
                     .set("text-anchor", "middle")
                     .set("data-role", "tick"),
             );
@@ -236,7 +236,7 @@ pub fn chart(f: &Figures) -> Document {
                     TOP - 14.0,
                     &format!(
                         "worst current {}",
-                        guardband_rules::format::in_unit(
+                        guardband_rules::show::in_unit(
                             *worst,
                             guardband_units::QuantityKind::CURRENT,
                             None

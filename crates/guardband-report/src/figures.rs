@@ -4,8 +4,9 @@
 //! reviewer sees the same figures in both places.
 
 use guardband_model::{Model, Node};
+use guardband_rules::Derived;
+use guardband_rules::Options;
 use guardband_rules::derive::view::{self, Role};
-use guardband_rules::{Config, Derived};
 
 /// One row of the derived-values table.
 #[derive(Debug, Clone, PartialEq)]
@@ -66,11 +67,11 @@ pub struct Figures {
 
 /// Collects the rows and bars of one regulator from the derived figures'
 /// one labelled view (the rows the editor's hovers show).
-pub fn figures(model: &Model, reg: &Node, derived: &Derived, config: &Config) -> Figures {
+pub fn figures(model: &Model, reg: &Node, derived: &Derived, options: &Options) -> Figures {
     let mut rows = Vec::new();
     let mut bars = Vec::new();
     let mut worst = None;
-    for r in view::rows(model, derived, config) {
+    for r in view::rows(model, derived, options) {
         let mut basis = r.basis.clone();
         for d in &r.details {
             if !basis.is_empty() {

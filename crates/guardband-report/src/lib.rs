@@ -10,8 +10,9 @@ pub mod chart;
 pub mod coverage;
 pub mod figures;
 
+use guardband_check::Checked;
 use guardband_model::Severity;
-use guardband_rules::{CAUTION, Checked};
+use guardband_rules::CAUTION;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
@@ -92,7 +93,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     let _ = writeln!(md, "> {CAUTION}\n");
     let mut charts = Vec::new();
     for (reg, derived) in model.regulators().zip(&checked.derived) {
-        let f = figures::figures(model, reg, derived, &checked.config);
+        let f = figures::figures(model, reg, derived, &checked.config.options);
         let file = &ws.file(reg.file).display;
         let _ = writeln!(md, "## Regulator `{}` ({file})\n", reg.key());
         let _ = writeln!(

@@ -1,16 +1,20 @@
-//! What a rule sees: the workspace, the model, the configuration and the
-//! derivations, with helpers to point at fields.
+//! What a rule sees: the workspace, the model, the options and the
+//! derivations, with helpers to point at fields. A rule's name and severity
+//! are the registry's: the helpers make findings of the rule being run.
 
-use crate::config::Config;
 use crate::derive::Derived;
-use guardband_model::{Diagnostic, Model, Node, NodeId, Severity, Workspace};
+use crate::options::Options;
+use crate::registry::RuleInfo;
+use guardband_model::{Diagnostic, FileId, Model, Node, NodeId, Workspace};
 
 /// Inputs shared by every rule.
 pub struct Context<'a> {
     pub ws: &'a Workspace,
     pub model: &'a Model,
-    pub config: &'a Config,
+    pub options: &'a Options,
     pub derived: &'a [Derived],
+    /// The rule being run.
+    pub rule: &'static RuleInfo,
 }
 
 impl<'a> Context<'a> {
@@ -26,17 +30,28 @@ impl<'a> Context<'a> {
             .unwrap_or(node.header_span.clone())
     }
 
-    /// Starts a diagnostic at a field's value (or the block header).
-    pub fn at(
+    /// A finding of the rule being run at `span` of `file`.
+    pub fn finding(
         &self,
-        rule: &'static str,
-        severity: Severity,
-        node: &Node,
-        key: &str,
-        message: String,
+        file: FileId,
+        span: std::ops::Range<usize>,
+        message: impl Into<String>,
     ) -> Diagnostic {
-        Diagnostic::error(rule, node.file, self.value_span(node, key), message)
-            .with_severity(severity)
+        let d = Diagnostic::error(self.rule.name, file, span, message);
+        match self.rule.default_severity {
+            Some(s) => d.with_severity(s),
+            None => d,
+        }
+    }
+
+    /// A finding at a field's value (or the block header).
+    pub fn at(&self, node: &Node, key: &str, message: impl Into<String>) -> Diagnostic {
+        self.finding(node.file, self.value_span(node, key), message)
+    }
+
+    /// A finding at a block's header.
+    pub fn at_block(&self, node: &Node, message: impl Into<String>) -> Diagnostic {
+        self.finding(node.file, node.header_span.clone(), message)
     }
 
     /// Adds a label at a field's value when the field exists.

@@ -15,7 +15,7 @@ pub struct RuleInfo {
     pub default_severity: Option<Severity>,
     /// One line: what it flags.
     pub summary: &'static str,
-    source: &'static str,
+    pub(crate) source: &'static str,
     /// Runs the rule, pushing diagnostics at the default severity.
     pub check: fn(&Context, &mut Vec<Diagnostic>),
 }
@@ -61,120 +61,29 @@ impl RuleInfo {
     }
 }
 
-macro_rules! rule {
-    ($module:ident, $name:literal, $sev:expr, $summary:literal) => {
-        RuleInfo {
-            name: $name,
-            default_severity: $sev,
-            summary: $summary,
-            source: include_str!(concat!("rules/", stringify!($module), ".rs")),
-            check: rules::$module::check,
-        }
+/// Declares each rule's module and its registry entry in one place
+/// (`rules/mod.rs`): a rule is its file plus one line there.
+macro_rules! declare_rules {
+    ($($module:ident: $name:literal, $sev:expr, $summary:literal;)*) => {
+        $(pub mod $module;)*
+
+        /// Every rule, in documentation order.
+        pub static RULES: &[$crate::registry::RuleInfo] = &[
+            $($crate::registry::RuleInfo {
+                name: $name,
+                default_severity: $sev,
+                summary: $summary,
+                source: include_str!(concat!(stringify!($module), ".rs")),
+                check: $module::check,
+            },)*
+        ];
     };
 }
-
-static RULES: &[RuleInfo] = &[
-    rule!(
-        limit_within_load,
-        "limit-within-load",
-        Some(Severity::Error),
-        "limit window's low edge at or below rated load plus margin"
-    ),
-    rule!(
-        conductor_under_rated,
-        "conductor-under-rated",
-        Some(Severity::Error),
-        "a conductor rated below the worst current that can flow through it"
-    ),
-    rule!(
-        unlimited_surge,
-        "unlimited-surge",
-        Some(Severity::Error),
-        "unlimited startup surge above a conductor rating or the supply surge limit"
-    ),
-    rule!(
-        missing_fault_case,
-        "missing-fault-case",
-        Some(Severity::Warning),
-        "an off-chip pin, limit or off-chip capacitor without its fault case"
-    ),
-    rule!(
-        limit_loop_analysis,
-        "limit-loop-analysis",
-        Some(Severity::Error),
-        "a sensed limit without a stability analysis set up to limit"
-    ),
-    rule!(
-        clamp_too_weak,
-        "clamp-too-weak",
-        Some(Severity::Error),
-        "clamp drive not above the amplifier's output drive"
-    ),
-    rule!(
-        short_overheat,
-        "short-overheat",
-        Some(Severity::Error),
-        "junction above its limit in a sustained short without thermal shutdown"
-    ),
-    rule!(
-        slow_start,
-        "slow-start",
-        Some(Severity::Error),
-        "startup slower than required, or unable to start against the load"
-    ),
-    rule!(
-        trip_uncharacterised,
-        "trip-uncharacterised",
-        Some(Severity::Warning),
-        "undervoltage-triggered limit without a characterised trip current"
-    ),
-    rule!(
-        tolerance_missing,
-        "tolerance-missing",
-        Some(Severity::Info),
-        "an exact value feeding a worst-case derivation"
-    ),
-    rule!(
-        expectation_violated,
-        "expectation-violated",
-        Some(Severity::Error),
-        "a fault case's expectation contradicted by the derived worst case"
-    ),
-    rule!(
-        supply_surge_exceeded,
-        "supply-surge-exceeded",
-        Some(Severity::Error),
-        "a startup surge above the supply's surge limit, however it is bounded"
-    ),
-    rule!(
-        pass_device_weak,
-        "pass-device-weak",
-        Some(Severity::Error),
-        "a pass device that cannot deliver the rated load at its weak corner"
-    ),
-    rule!(
-        undervoltage_threshold_in_regulation,
-        "undervoltage-threshold-in-regulation",
-        Some(Severity::Error),
-        "an undervoltage threshold that reaches the output's regulation range"
-    ),
-    rule!(
-        wire_rated_at_fusing,
-        "wire-rated-at-fusing",
-        Some(Severity::Warning),
-        "a bond wire rated at its Preece fusing current, with no derating stated"
-    ),
-    rule!(
-        figure_not_derived,
-        "figure-not-derived",
-        Some(Severity::Info),
-        "a figure not derived because an input is missing or has an error"
-    ),
-];
+pub(crate) use declare_rules;
 
 /// Every lint rule, in documentation order.
 pub fn registry() -> &'static [RuleInfo] {
-    RULES
+    rules::RULES
 }
 
 #[cfg(test)]
@@ -183,8 +92,16 @@ mod tests {
 
     #[test]
     fn every_rule_is_documented_with_all_sections() {
-        assert_eq!(registry().len(), 16);
+        let mut names: Vec<&str> = registry().iter().map(|r| r.name).collect();
+        names.sort();
+        names.dedup();
+        assert_eq!(names.len(), registry().len(), "two rules share a name");
         for r in registry() {
+            assert!(
+                r.name.bytes().all(|b| b.is_ascii_lowercase() || b == b'-'),
+                "{} is not kebab-case",
+                r.name
+            );
             let doc = r.documentation();
             for section in [
                 "## What it flags",

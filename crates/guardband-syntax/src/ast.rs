@@ -8,7 +8,7 @@ use crate::Span;
 
 /// A parsed file: its items and its comments.
 #[derive(Debug, Clone, PartialEq, Default)]
-pub struct SourceFile {
+pub struct ParsedFile {
     pub items: Vec<Item>,
     pub comments: Vec<crate::Comment>,
 }
@@ -53,7 +53,7 @@ pub struct Block {
 /// A member of a block.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Member {
-    Field(Field),
+    Field(Statement),
     Block(Block),
     /// Tokens that form no member; already reported.
     Error(Span),
@@ -87,10 +87,11 @@ impl Relation {
     }
 }
 
-/// `keyword [name] (= | <= | >= | < | >) value`, e.g. `load = 0 mA .. 150 mA`,
-/// `force vout = 1.5 V`, `expect current <= 400 mA`.
+/// A field as written, `keyword [name] (= | <= | >= | < | >) value`, e.g.
+/// `load = 0 mA .. 150 mA`, `force vout = 1.5 V`, `expect current <= 400 mA`.
+/// (The model's checked field is `guardband_model::Field`.)
 #[derive(Debug, Clone, PartialEq)]
-pub struct Field {
+pub struct Statement {
     pub keyword: Ident,
     pub name: Option<Ident>,
     pub relation: Relation,
@@ -99,7 +100,7 @@ pub struct Field {
     pub span: Span,
 }
 
-impl Field {
+impl Statement {
     /// The key under which this field is looked up: its name if it has one, else its keyword.
     pub fn key(&self) -> &Ident {
         self.name.as_ref().unwrap_or(&self.keyword)

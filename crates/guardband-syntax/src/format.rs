@@ -8,7 +8,7 @@
 //! them is collapsed. A file with syntax errors is not formatted: guessing at
 //! broken text could change what it means.
 
-use crate::ast::{Block, Field, Item, Member};
+use crate::ast::{Block, Item, Member, Statement};
 use crate::{Comment, Span, parse};
 
 const INDENT: &str = "    ";
@@ -284,7 +284,7 @@ impl<'a> Formatter<'a> {
         self.flush(&mut run, depth);
     }
 
-    fn field_line(&mut self, f: &Field) -> RunLine {
+    fn field_line(&mut self, f: &Statement) -> RunLine {
         let mut key = f.keyword.text.to_string();
         if let Some(n) = &f.name {
             key.push(' ');
@@ -389,10 +389,10 @@ impl<'a> Formatter<'a> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::ast::{Expr, ExprKind, SourceFile};
+    use crate::ast::{Expr, ExprKind, ParsedFile};
 
     /// The tree without spans, and the comment texts: what formatting must keep.
-    fn shape(file: &SourceFile) -> String {
+    fn shape(file: &ParsedFile) -> String {
         fn expr(e: &Expr) -> String {
             match &e.kind {
                 ExprKind::Number { value, unit } => {

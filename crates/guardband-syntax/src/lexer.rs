@@ -196,14 +196,46 @@ pub struct Comment {
     pub span: Span,
 }
 
+/// The ends of a span, whatever its type.
+pub(crate) trait SpanEnds {
+    fn end(&self) -> usize;
+    fn set_end(&mut self, end: usize);
+}
+
+impl SpanEnds for Span {
+    fn end(&self) -> usize {
+        self.end
+    }
+    fn set_end(&mut self, end: usize) {
+        self.end = end;
+    }
+}
+
+impl SpanEnds for chumsky::span::SimpleSpan {
+    fn end(&self) -> usize {
+        self.end
+    }
+    fn set_end(&mut self, end: usize) {
+        self.end = end;
+    }
+}
+
 /// Splits source text into tokens (without comments) and comments.
 ///
 /// Never fails: characters that start no token become one [`Token::Error`]
 /// per run of adjacent bad characters.
 pub fn lex(source: &str) -> (Vec<(Token<'_>, Span)>, Vec<Comment>) {
+    lex_into(source)
+}
+
+/// [`lex`] into any span type that a byte range converts into (the
+/// parser's own span type saves a copy of the token list).
+pub(crate) fn lex_into<S: From<Span> + SpanEnds>(
+    source: &str,
+) -> (Vec<(Token<'_>, S)>, Vec<Comment>) {
     // Specs run at about one token per five bytes; sizing for that saves
     // the copies of a growing list.
-    let mut tokens: Vec<(Token<'_>, Span)> = Vec::with_capacity(source.len() / 5 + 16);
+    let mut tokens: Vec<(Token<'_>, S)> = Vec::with_capacity(source.len() / 5 + 16);
     let mut comments = Vec::new();
     for (result, span) in Token::lexer(source).spanned() {
         match result {
@@ -211,10 +243,10 @@ pub fn lex(source: &str) -> (Vec<(Token<'_>, Span)>, Vec<Comment>) {
                 text: text.to_string(),
                 span,
             }),
-            Ok(tok) => tokens.push((tok, span)),
+            Ok(tok) => tokens.push((tok, S::from(span))),
             Err(()) => match tokens.last_mut() {
-                Some((Token::Error, last)) if last.end == span.start => last.end = span.end,
-                _ => tokens.push((Token::Error, span)),
+                Some((Token::Error, last)) if last.end() == span.start => last.set_end(span.end),
+                _ => tokens.push((Token::Error, S::from(span))),
             },
         }
     }

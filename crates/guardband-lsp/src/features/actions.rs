@@ -27,18 +27,18 @@ struct Fix {
     diagnostic: usize,
 }
 
-/// The actions for the findings in `params.range` of `file`, plus fix-all.
+/// The actions for the findings in the byte span `within` of `file`, plus
+/// fix-all; `params` says which kinds the client wants.
 pub fn code_actions(
     analysis: &Analysis,
     file: FileId,
+    within: std::ops::Range<usize>,
     params: &CodeActionParams,
     encoding: Encoding,
 ) -> Vec<CodeActionOrCommand> {
     let source = analysis.checked.ws.file(file);
     let index = &source.line_index;
-    let a = encoding.offset(index, params.range.start);
-    let b = encoding.offset(index, params.range.end);
-    let (lo, hi) = (a.min(b), a.max(b));
+    let (lo, hi) = (within.start, within.end);
     let wanted = |kind: &CodeActionKind| {
         params.context.only.as_ref().is_none_or(|only| {
             only.iter().any(|o| {
@@ -166,8 +166,8 @@ fn size_conductor(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<F
     let parsed = parse_unit(&unit).ok()?;
     // A hair of headroom so that rounding in the rating itself cannot leave it short.
     let needed = v.lo * ratio.powf(exponent) * 1.001;
-    let written = guardband_rules::format::ceil3(parsed.diff_from_si(needed));
-    let new_text = format!("{} {unit}", guardband_rules::format::number(written));
+    let written = guardband_rules::show::ceil3(parsed.diff_from_si(needed));
+    let new_text = format!("{} {unit}", guardband_rules::show::number(written));
     Some(Fix {
         title: format!(
             "Set `{key}` of `{}` to {new_text} (carries the worst current)",

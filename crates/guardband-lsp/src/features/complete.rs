@@ -3,13 +3,12 @@
 //! paths after `=`, and the words of choice fields.
 
 use super::locate;
-use crate::encoding::Encoding;
 use crate::engine::Analysis;
 use guardband_model::schema::{self, BlockKind, FieldSpec, FieldType};
 use guardband_model::{FileId, Model, Node};
 use guardband_units::{Dimension, parse_unit};
 use tower_lsp_server::ls_types::{
-    CompletionItem, CompletionItemKind, Documentation, InsertTextFormat, Position,
+    CompletionItem, CompletionItemKind, Documentation, InsertTextFormat,
 };
 
 /// Unit spellings offered after a number; only those of the field's dimension are shown.
@@ -19,15 +18,9 @@ const UNIT_SPELLINGS: &[&str] = &[
     "A/cm^2", "mA/um", "eV", "uohm*cm", "deg", "%", "ppm", "V/us", "Hz", "kHz", "MHz", "uH", "nH",
 ];
 
-/// Completion items at `position` of `file`.
-pub fn complete(
-    analysis: &Analysis,
-    file: FileId,
-    position: Position,
-    encoding: Encoding,
-) -> Vec<CompletionItem> {
+/// Completion items at byte `offset` of `file`.
+pub fn complete(analysis: &Analysis, file: FileId, offset: usize) -> Vec<CompletionItem> {
     let source = analysis.checked.ws.file(file);
-    let offset = encoding.offset(&source.line_index, position);
     let text = &source.text;
     let line_start = text[..offset].rfind('\n').map(|i| i + 1).unwrap_or(0);
     let before = &text[line_start..offset];

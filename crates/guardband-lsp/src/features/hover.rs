@@ -4,25 +4,17 @@
 //! figures); on a finding, the rule's summary and how to fix it.
 
 use super::locate::{self, Hit};
-use crate::encoding::Encoding;
 use crate::engine::Analysis;
 use guardband_model::{BlockKind, FieldValue, FileId, Model, Node, Symbol, Value, Workspace};
 use guardband_rules::derive::view::{self, Role, Row};
 use guardband_rules::derive::{stat_settings, statistical};
-use guardband_rules::format::{in_unit, number, percent};
+use guardband_rules::show::{in_unit, number, percent};
 use guardband_units::QuantityKind;
 use std::fmt::Write;
-use tower_lsp_server::ls_types::{Hover, HoverContents, MarkupContent, MarkupKind, Position};
+use tower_lsp_server::ls_types::{Hover, HoverContents, MarkupContent, MarkupKind};
 
-/// The hover at `position` of `file`, if anything is there.
-pub fn hover(
-    analysis: &Analysis,
-    file: FileId,
-    position: Position,
-    encoding: Encoding,
-) -> Option<Hover> {
-    let index = &analysis.checked.ws.file(file).line_index;
-    let offset = encoding.offset(index, position);
+/// The hover at byte `offset` of `file`, if anything is there.
+pub fn hover(analysis: &Analysis, file: FileId, offset: usize) -> Option<Hover> {
     let text = markdown(analysis, file, offset)?;
     Some(Hover {
         contents: HoverContents::Markup(MarkupContent {
@@ -96,7 +88,7 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
                     model,
                     &analysis.checked.ws,
                     v,
-                    &analysis.checked.config,
+                    &analysis.checked.config.options,
                     out,
                 ),
                 Some(FieldValue::Ref(target)) => {
@@ -141,7 +133,7 @@ fn value(
     model: &Model,
     ws: &Workspace,
     v: &Value,
-    config: &guardband_rules::Config,
+    options: &guardband_rules::Options,
     out: &mut String,
 ) {
     let unit = v.unit.as_deref();
@@ -157,7 +149,7 @@ fn value(
         return;
     }
     let _ = writeln!(out, "Bounds by {}.\n", v.bounds.describe());
-    let stat = statistical(model, v, &stat_settings(config));
+    let stat = statistical(model, v, &stat_settings(options));
     let _ = writeln!(
         out,
         "Statistical (window ± {} σ): {} .. {}\n",
@@ -205,7 +197,7 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     let Some(derived) = analysis.checked.derived_for(regulator.id) else {
         return;
     };
-    let rows = view::rows(model, derived, &analysis.checked.config);
+    let rows = view::rows(model, derived, &analysis.checked.config.options);
     let event = node.choice("event");
     let wanted = |r: &Row| match node.kind {
         BlockKind::Regulator => r.node == node.id || r.role == Role::NotDerived,

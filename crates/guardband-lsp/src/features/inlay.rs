@@ -1,13 +1,15 @@
 //! Inlay hints: the evaluated window after every value computed from other
-//! values (`threshold = ratio * reference  ⇒ 190 uA .. 210 uA`), and the
-//! derived limit window after each limit's name.
+//! values (`threshold = ratio * reference  ⇒ 190 uA .. 210 uA`), and, after
+//! each limit's and conductor's name, its derived figure as the derived
+//! view words it (the hover and the report show the same row).
 
 use crate::encoding::Encoding;
 use crate::engine::Analysis;
 use guardband_model::{BlockKind, FileId};
-use guardband_rules::format::bounds;
+use guardband_rules::derive::view::{self, Role};
+use guardband_rules::show::bounds;
 use guardband_syntax::{Expr, ExprKind};
-use tower_lsp_server::ls_types::{InlayHint, InlayHintKind, InlayHintLabel, Range};
+use tower_lsp_server::ls_types::{InlayHint, InlayHintKind, InlayHintLabel};
 
 /// Whether a value is computed (names or operations) rather than written out.
 fn is_derived(e: &Expr) -> bool {
@@ -35,33 +37,46 @@ fn hint(position: tower_lsp_server::ls_types::Position, label: String) -> InlayH
     }
 }
 
-/// The hints of `file` within `range`.
+/// The hints of `file` within the byte span `within`.
 pub fn hints(
     analysis: &Analysis,
     file: FileId,
-    range: Range,
+    within: std::ops::Range<usize>,
     encoding: Encoding,
 ) -> Vec<InlayHint> {
     let index = &analysis.checked.ws.file(file).line_index;
-    let a = encoding.offset(index, range.start);
-    let b = encoding.offset(index, range.end);
-    let (lo, hi) = (a.min(b), a.max(b));
+    let (lo, hi) = (within.start, within.end);
     let model = &analysis.checked.model;
     let mut out = Vec::new();
+    // The derived rows of each regulator with a block in range, worded once.
+    let mut derived_rows = std::collections::HashMap::new();
     for node in model
         .nodes
         .iter()
         .filter(|n| n.file == file && n.span.end >= lo && n.span.start <= hi)
     {
-        if node.kind == BlockKind::Limit
-            && let Some(d) = analysis.checked.derived_for(model.item_of(node.id).id)
-            && let Some(Ok(window)) = d.limit(node.id).map(|l| l.window.as_ref())
+        let wanted = match node.kind {
+            BlockKind::Limit => Some((Role::LimitWorstCase, "window")),
+            BlockKind::Conductor => Some((Role::ConductorRating, "rated")),
+            _ => None,
+        };
+        if let Some((role, word)) = wanted
             && (lo..=hi).contains(&node.name_span.end)
         {
-            out.push(hint(
-                encoding.position(index, node.name_span.end),
-                format!("window {}", bounds(window)),
-            ));
+            let regulator = model.item_of(node.id).id;
+            let rows = derived_rows.entry(regulator).or_insert_with(|| {
+                analysis
+                    .checked
+                    .derived_for(regulator)
+                    .map(|d| view::rows(model, d, &analysis.checked.config.options))
+                    .unwrap_or_default()
+            });
+            if let Some(row) = rows.iter().find(|r| r.node == node.id && r.role == role) {
+                out.push(hint(
+                    encoding.position(index, node.name_span.end),
+                    format!("{word} {}", row.value),
+                ));
+            }
         }
         for f in &node.fields {
             let end = f.expr.span.end;

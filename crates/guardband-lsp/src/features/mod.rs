@@ -3,7 +3,7 @@
 pub mod actions;
 pub mod complete;
 pub mod diagnostics;
-pub mod format;
+pub mod formatting;
 pub mod hover;
 pub mod inlay;
 pub mod locate;

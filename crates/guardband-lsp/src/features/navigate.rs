@@ -12,7 +12,7 @@ use guardband_model::{FileId, Node, Symbol};
 use guardband_syntax::Item;
 use std::collections::HashMap;
 use tower_lsp_server::ls_types::{
-    Location, Position, PrepareRenameResponse, Range, TextEdit, Uri, WorkspaceEdit,
+    Location, PrepareRenameResponse, Range, TextEdit, Uri, WorkspaceEdit,
 };
 
 fn location(
@@ -28,28 +28,19 @@ fn location(
     ))
 }
 
-fn offset(analysis: &Analysis, file: FileId, position: Position, encoding: Encoding) -> usize {
-    encoding.offset(&analysis.checked.ws.file(file).line_index, position)
+/// The symbol at byte `offset`.
+pub fn symbol_at(analysis: &Analysis, file: FileId, offset: usize) -> Option<Symbol> {
+    locate::at(analysis, file, offset)?.symbol()
 }
 
-/// The symbol at a position.
-pub fn symbol_at(
-    analysis: &Analysis,
-    file: FileId,
-    position: Position,
-    encoding: Encoding,
-) -> Option<Symbol> {
-    locate::at(analysis, file, offset(analysis, file, position, encoding))?.symbol()
-}
-
-/// Where the name at `position` is defined; on a `use` path, the file it imports.
+/// Where the name at byte `offset` is defined; on a `use` path, the file it imports.
 pub fn definition(
     analysis: &Analysis,
     file: FileId,
-    position: Position,
+    offset: usize,
     encoding: Encoding,
 ) -> Option<Location> {
-    let at = offset(analysis, file, position, encoding);
+    let at = offset;
     let source = analysis.checked.ws.file(file);
     for item in &source.parse.file.items {
         if let Item::Use(u) = item
@@ -60,20 +51,20 @@ pub fn definition(
             return location(analysis, *target, &(0..0), encoding);
         }
     }
-    let symbol = symbol_at(analysis, file, position, encoding)?;
+    let symbol = symbol_at(analysis, file, offset)?;
     let (def_file, span) = analysis.checked.model.definition(symbol);
     location(analysis, def_file, &span, encoding)
 }
 
-/// Every use of the symbol at `position` (and its definition, if asked).
+/// Every use of the symbol at byte `offset` (and its definition, if asked).
 pub fn references(
     analysis: &Analysis,
     file: FileId,
-    position: Position,
+    offset: usize,
     include_declaration: bool,
     encoding: Encoding,
 ) -> Option<Vec<Location>> {
-    let symbol = symbol_at(analysis, file, position, encoding)?;
+    let symbol = symbol_at(analysis, file, offset)?;
     let mut out = Vec::new();
     if include_declaration {
         let (f, span) = analysis.checked.model.definition(symbol);
@@ -120,10 +111,10 @@ fn uses(analysis: &Analysis, symbol: Symbol) -> Vec<(FileId, std::ops::Range<usi
 pub fn prepare_rename(
     analysis: &Analysis,
     file: FileId,
-    position: Position,
+    offset: usize,
     encoding: Encoding,
 ) -> Option<PrepareRenameResponse> {
-    let at = offset(analysis, file, position, encoding);
+    let at = offset;
     let hit = locate::at(analysis, file, at)?;
     let symbol = hit.symbol()?;
     renamable(analysis, symbol).ok()?;
@@ -164,16 +155,16 @@ fn is_identifier(name: &str) -> bool {
         && !["use", "true", "false", "min", "nom", "max"].contains(&name)
 }
 
-/// Renames the block at `position` everywhere the analysis can see.
+/// Renames the block at byte `offset` everywhere the analysis can see.
 /// `Ok(None)` when there is nothing to rename there.
 pub fn rename(
     analysis: &Analysis,
     file: FileId,
-    position: Position,
+    offset: usize,
     new_name: &str,
     encoding: Encoding,
 ) -> Result<Option<WorkspaceEdit>, String> {
-    let Some(symbol) = symbol_at(analysis, file, position, encoding) else {
+    let Some(symbol) = symbol_at(analysis, file, offset) else {
         return Ok(None);
     };
     let node = renamable(analysis, symbol)?;

@@ -8,7 +8,7 @@ use guardband_model::schema::FieldType;
 use guardband_syntax::{Block, Item, LineIndex, Member, Token, lex};
 use std::collections::HashMap;
 use tower_lsp_server::ls_types::{
-    Range, SemanticToken, SemanticTokenType, SemanticTokens, SemanticTokensLegend,
+    SemanticToken, SemanticTokenType, SemanticTokens, SemanticTokensLegend,
 };
 
 /// The token types, in legend order.
@@ -68,11 +68,11 @@ fn block_spans(b: &Block, out: &mut HashMap<usize, Kind>) {
     }
 }
 
-/// The tokens of `file`, all of them or those in `range`.
+/// The tokens of `file`, all of them or those in the byte span `within`.
 pub fn tokens(
     analysis: &Analysis,
     file: FileId,
-    range: Option<Range>,
+    within: Option<std::ops::Range<usize>>,
     encoding: Encoding,
 ) -> SemanticTokens {
     let source = analysis.checked.ws.file(file);
@@ -96,12 +96,8 @@ pub fn tokens(
         }
     }
     let index = &source.line_index;
-    let (lo, hi) = match range {
-        Some(r) => {
-            let a = encoding.offset(index, r.start);
-            let b = encoding.offset(index, r.end);
-            (a.min(b), a.max(b))
-        }
+    let (lo, hi) = match within {
+        Some(r) => (r.start, r.end),
         None => (0, usize::MAX),
     };
     let (toks, comments) = lex(&source.text);

@@ -14,9 +14,9 @@
 
 use super::current::WorstCurrent;
 use super::unknown::{Figure, Unknown, need, optional};
-use crate::config::Config;
-use crate::format;
+use crate::options::Options;
 use crate::physics::conductor as phys;
+use crate::show;
 use guardband_model::{BlockKind, Model, Node, NodeId, Value};
 use guardband_units::{QuantityKind, to_uom};
 use uom::si::f64 as q;
@@ -107,7 +107,7 @@ fn kelvin(t: f64) -> q::ThermodynamicTemperature {
 }
 
 fn show_temperature(t: f64) -> String {
-    format::in_unit(t, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C"))
+    show::in_unit(t, QuantityKind::ABSOLUTE_TEMPERATURE, Some("°C"))
 }
 
 /// Black's-equation factor at the worst corner: the smallest over the
@@ -150,7 +150,7 @@ fn worst_black(ea: &Value, n: &Value, t: f64, t_ref: &Value, life: Option<(f64, 
 pub struct RatingInputs<'a> {
     pub model: &'a Model,
     pub reg: &'a Node,
-    pub config: &'a Config,
+    pub options: &'a Options,
     pub worst: &'a Figure<WorstCurrent>,
     /// The hottest the die gets in a fault.
     pub fault_temperature: &'a Figure<super::FaultTemperature>,
@@ -278,10 +278,10 @@ fn metal(inputs: &RatingInputs, c: &Node, out: &mut ConductorRating) {
                 .value;
             out.formula = Some(format!(
                 "width {} × thickness {} × current density {} (low ends) = {}",
-                format::in_unit(width.lo, width.kind, width.unit.as_deref()),
-                format::in_unit(t.lo, t.kind, t.unit.as_deref()),
-                format::in_unit(j.lo, j.kind, j.unit.as_deref()),
-                format::in_unit(i, QuantityKind::CURRENT, None)
+                show::in_unit(width.lo, width.kind, width.unit.as_deref()),
+                show::in_unit(t.lo, t.kind, t.unit.as_deref()),
+                show::in_unit(j.lo, j.kind, j.unit.as_deref()),
+                show::in_unit(i, QuantityKind::CURRENT, None)
             ));
             i
         }
@@ -289,9 +289,9 @@ fn metal(inputs: &RatingInputs, c: &Node, out: &mut ConductorRating) {
             let i = jw.lo * width.lo;
             out.formula = Some(format!(
                 "width {} × current per width {} (low ends) = {}",
-                format::in_unit(width.lo, width.kind, width.unit.as_deref()),
-                format::in_unit(jw.lo, jw.kind, jw.unit.as_deref()),
-                format::in_unit(i, QuantityKind::CURRENT, None)
+                show::in_unit(width.lo, width.kind, width.unit.as_deref()),
+                show::in_unit(jw.lo, jw.kind, jw.unit.as_deref()),
+                show::in_unit(i, QuantityKind::CURRENT, None)
             ));
             i
         }
@@ -363,14 +363,14 @@ fn metal(inputs: &RatingInputs, c: &Node, out: &mut ConductorRating) {
         .quantity("lifetime")
         .map(|v| v.hi)
         .or_else(|| inputs.reg.quantity("lifetime").map(|v| v.hi))
-        .or(inputs.config.lifetime);
+        .or(inputs.options.lifetime);
     let life = match (lifetime, optional(layer, "reference_lifetime")) {
         (Some(l), Ok(Some(l_ref))) => Some((l, l_ref)),
         (Some(l), Ok(None)) => {
             return out.rating = unrated(
                 Unknown::because(format!(
                     "the rating is meant for {} yr but layer `{}` states no `reference_lifetime`",
-                    format::number(l / (365.0 * 86_400.0)),
+                    show::number(l / (365.0 * 86_400.0)),
                     layer.key()
                 )),
                 "state the layer's `reference_lifetime` in the process file",
@@ -392,12 +392,9 @@ fn metal(inputs: &RatingInputs, c: &Node, out: &mut ConductorRating) {
                 basis = format!(
                     "{basis}, derated by Black's equation to {}{} (×{})",
                     show_temperature(temperature),
-                    life.map(|(l, _)| format!(
-                        " for {} yr",
-                        format::number(l / (365.0 * 86_400.0))
-                    ))
-                    .unwrap_or_default(),
-                    format::number(f)
+                    life.map(|(l, _)| format!(" for {} yr", show::number(l / (365.0 * 86_400.0))))
+                        .unwrap_or_default(),
+                    show::number(f)
                 );
                 f
             }
@@ -517,15 +514,15 @@ fn bond_wire(model: &Model, c: &Node, out: &mut ConductorRating) {
             out.derating_stated = true;
             out.basis = format!(
                 "Preece fusing current of {} {material} wire × derating {}",
-                format::in_unit(diameter.lo, diameter.kind, diameter.unit.as_deref()),
-                format::number(d.lo)
+                show::in_unit(diameter.lo, diameter.kind, diameter.unit.as_deref()),
+                show::number(d.lo)
             );
             out.rating = Ok(fuse * d.lo);
         }
         Ok(None) => {
             out.basis = format!(
                 "Preece fusing current of {} {material} wire, no derating stated",
-                format::in_unit(diameter.lo, diameter.kind, diameter.unit.as_deref()),
+                show::in_unit(diameter.lo, diameter.kind, diameter.unit.as_deref()),
             );
             out.rating = Ok(fuse);
         }
@@ -551,7 +548,7 @@ fn trace(c: &Node, out: &mut ConductorRating) {
     );
     out.basis = format!(
         "IPC-2221 {placement} trace for a {} K rise",
-        format::number(rise.lo)
+        show::number(rise.lo)
     );
     out.rating = Ok(i.value);
 }

@@ -300,8 +300,8 @@ pub fn currents(
         };
         Unknown::because(format!(
             "nothing bounds the current with the output between {} and {}: {what}",
-            crate::format::in_unit(from, guardband_units::QuantityKind::VOLTAGE, Some("V")),
-            crate::format::in_unit(to, guardband_units::QuantityKind::VOLTAGE, Some("V")),
+            crate::show::in_unit(from, guardband_units::QuantityKind::VOLTAGE, Some("V")),
+            crate::show::in_unit(to, guardband_units::QuantityKind::VOLTAGE, Some("V")),
         ))
     })?;
     let lower = envelope::lowest(&b.lower, vmax).map_err(|_| {

@@ -26,7 +26,7 @@ pub use statistics::{
 pub use unknown::{Figure, Need, Unknown};
 pub use window::{LimitWindow, Scheme, UnreadLimit};
 
-use crate::config::Config;
+use crate::options::Options;
 use guardband_model::{BlockKind, Model, Node, NodeId};
 
 /// Everything derived for one regulator.
@@ -69,17 +69,17 @@ impl Derived {
     }
 }
 
-/// The statistical settings of a configuration.
-pub fn stat_settings(config: &Config) -> StatSettings {
+/// The statistical settings of the options.
+pub fn stat_settings(options: &Options) -> StatSettings {
     StatSettings {
-        sigma: config.sigma,
-        ranges: config.ranges,
+        sigma: options.sigma,
+        ranges: options.ranges,
     }
 }
 
 /// Derives every figure for one regulator.
-pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
-    let settings = stat_settings(config);
+pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
+    let settings = stat_settings(options);
     let (limits, unread_limits) = window::limit_windows(model, reg, &settings);
     let currents = current::currents(model, reg, &limits, &unread_limits);
     let worst = currents
@@ -92,7 +92,7 @@ pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
     let inputs = conductor::RatingInputs {
         model,
         reg,
-        config,
+        options,
         worst: &worst,
         fault_temperature: &fault_temperature,
     };
@@ -108,7 +108,7 @@ pub fn derive(model: &Model, reg: &Node, config: &Config) -> Derived {
         margin: reg
             .quantity("margin")
             .map(|m| m.nom)
-            .unwrap_or(config.margin),
+            .unwrap_or(options.margin),
         limits,
         unread_limits,
         currents,

@@ -4,8 +4,8 @@
 //! same numbers in the editor and in the report.
 
 use super::{Carries, Derived, Scheme, escape_ppm, sigmas_below};
-use crate::config::Config;
-use crate::format::{bounds, in_unit, number, percent, ppm};
+use crate::options::Options;
+use crate::show::{bounds, in_unit, number, percent, ppm};
 use guardband_model::{FileId, Model, NodeId};
 use guardband_units::{Dimension, QuantityKind};
 
@@ -74,7 +74,7 @@ fn volts(v: f64) -> String {
 }
 
 /// Every derived figure of one regulator, in reading order.
-pub fn rows(model: &Model, d: &Derived, config: &Config) -> Vec<Row> {
+pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
     let reg = d.regulator;
     let unit = d.load_unit.as_deref();
     let mut out = Vec::new();
@@ -134,7 +134,7 @@ pub fn rows(model: &Model, d: &Derived, config: &Config) -> Vec<Row> {
                         ),
                     );
                     r.current = Some((stat.lo, stat.hi));
-                    r.basis = match config.ranges {
+                    r.basis = match options.ranges {
                         super::RangeMode::Uniform => "root-sum-square; each ± at its own σ (default the configured sigma), each range as uniform".into(),
                         super::RangeMode::Bound => "root-sum-square of the tolerances; ranges added as bounds".into(),
                     };
@@ -148,7 +148,7 @@ pub fn rows(model: &Model, d: &Derived, config: &Config) -> Vec<Row> {
                                 guardband_model::Spread::Normal(Some(k)) =>
                                     format!("(± at {} σ)", number(k)),
                                 guardband_model::Spread::Normal(None) =>
-                                    format!("(± at {} σ)", number(config.sigma)),
+                                    format!("(± at {} σ)", number(options.sigma)),
                             },
                             percent(c.share)
                         ));

@@ -22,9 +22,7 @@
 //! Strengthen the clamp, or limit the amplifier's output current.
 
 use crate::context::Context;
-use guardband_model::{BlockKind, Diagnostic, Severity};
-
-const RULE: &str = "clamp-too-weak";
+use guardband_model::{BlockKind, Diagnostic};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for reg in ctx.model.regulators() {
@@ -40,11 +38,11 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             };
             if crate::compare::at_most(clamp.lo, amp.hi) {
                 let (c, a) =
-                    crate::format::versus(clamp.lo, amp.hi, clamp.kind, clamp.unit.as_deref());
+                    crate::show::versus(clamp.lo, amp.hi, clamp.kind, clamp.unit.as_deref());
                 let gap = if crate::compare::below(clamp.lo, amp.hi) {
                     format!(
                         ", {} short",
-                        crate::format::difference(
+                        crate::show::difference(
                             clamp.lo,
                             amp.hi,
                             clamp.kind,
@@ -54,17 +52,16 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 } else {
                     String::new()
                 };
-                let d = ctx
-                    .at(RULE, Severity::Error, limit, "clamp_drive", format!(
+                let d = ctx.at(limit, "clamp_drive", format!(
                         "`{}` clamp drive {c} (minimum) does not exceed the amplifier drive {a} (maximum){gap}",
                         limit.key()
                     ))
-                    .primary(format!("clamp {}", crate::format::bounds(clamp)));
+                    .primary(format!("clamp {}", crate::show::bounds(clamp)));
                 let d = ctx.label(
                     d,
                     pass,
                     "amplifier_drive",
-                    format!("amplifier {}", crate::format::bounds(amp)),
+                    format!("amplifier {}", crate::show::bounds(amp)),
                 );
                 out.push(d.help("the clamp must win the gate at every corner: strengthen it or limit the amplifier's output current"));
             }

@@ -42,11 +42,9 @@
 use crate::compare;
 use crate::context::Context;
 use crate::derive::{Carries, ConductorKind, ConductorRating, Derived};
-use crate::format::{difference, in_unit, number, versus};
-use guardband_model::{Diagnostic, Node, Severity};
+use crate::show::{difference, in_unit, number, versus};
+use guardband_model::{Diagnostic, Node};
 use guardband_units::{Dimension, QuantityKind};
-
-const RULE: &str = "conductor-under-rated";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -62,17 +60,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         continue;
                     }
                     out.push(
-                        Diagnostic::error(
-                            RULE,
-                            c.file,
-                            c.header_span.clone(),
-                            format!(
+                        ctx.at_block(c, format!(
                                 "conductor `{}` has no rating: {}",
                                 c.key(),
                                 unrated.why.describe(ctx.model)
                             ),
                         )
-                        .with_severity(Severity::Error)
                         .primary("no rating")
                         .help(unrated.help),
                     );
@@ -119,11 +112,7 @@ fn under_rated(
         (Ok(w), _) => w.cause.what.clone(),
         (Err(_), _) => String::new(),
     };
-    let mut diag = Diagnostic::error(
-        RULE,
-        c.file,
-        c.header_span.clone(),
-        format!(
+    let mut diag = ctx.at_block(c, format!(
             "conductor `{}` is rated {r}, {short} below the {i} that can flow through it ({why})",
             c.key()
         ),
@@ -192,7 +181,7 @@ fn fix(kind: ConductorKind, current: f64, rating: f64, shown: &str, lower: &str)
             };
             format!(
                 "size it for at least {shown}: `{key}` about {}× ({law}), {lower}",
-                number(crate::format::ceil3(ratio.powf(power)))
+                number(crate::show::ceil3(ratio.powf(power)))
             )
         }
         None => format!("size it for at least {shown}, {lower}"),

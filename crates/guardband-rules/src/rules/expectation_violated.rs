@@ -37,11 +37,9 @@
 use crate::compare;
 use crate::context::Context;
 use crate::derive::{Derived, envelope};
-use crate::format::{difference, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity, Value};
+use crate::show::{difference, versus};
+use guardband_model::{BlockKind, Diagnostic, Value};
 use guardband_syntax::Relation;
-
-const RULE: &str = "expectation-violated";
 
 /// A derived figure's bounds over every corner (either may be unknown) and why.
 struct Bounds {
@@ -154,8 +152,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     }
                 };
                 out.push(
-                    Diagnostic::error(RULE, fault.file, exp.span.clone(), message)
-                        .with_severity(Severity::Error)
+                    ctx.finding(fault.file, exp.span.clone(), message)
                         .primary("contradicted by the derived bounds")
                         .help("correct the expectation, or change the design so that every corner meets it"),
                 );

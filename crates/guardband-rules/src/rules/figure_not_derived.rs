@@ -32,9 +32,7 @@
 
 use crate::context::Context;
 use crate::derive::Unknown;
-use guardband_model::{BlockKind, Diagnostic, Node, Severity};
-
-const RULE: &str = "figure-not-derived";
+use guardband_model::{BlockKind, Diagnostic, Node};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -97,13 +95,8 @@ fn push(ctx: &Context, out: &mut Vec<Diagnostic>, node: &Node, figures: &[(&str,
         })
         .collect();
     out.push(
-        Diagnostic::error(
-            RULE,
-            node.file,
-            node.header_span.clone(),
-            format!("not derived for `{}`: {}", node.key(), parts.join("; ")),
+        ctx.at_block(node, format!("not derived for `{}`: {}", node.key(), parts.join("; ")),
         )
-        .with_severity(Severity::Info)
         .primary("the checks that need these did not run")
         .help("write the missing inputs, or correct the ones with errors"),
     );

@@ -6,9 +6,9 @@
 //! still regulate (error); a forced name that is not a pin of the
 //! regulator, a forced supply pin (`role = supply`), a requirement written
 //! backwards (`require phase_margin <= 45 deg`), or the clamp on the device
-//! side of the break (`clamp_side = device`) (errors); a break point other
-//! than the pass device's gate, no `clamp_side`, or no
-//! `require phase_margin` (warnings).
+//! side of the break (`clamp_side = device`), or a break point other than
+//! the pass device's gate. An analysis set up right but with its clamp side
+//! or pass criterion unstated is `limit-loop-incomplete`.
 //!
 //! ## Why it matters
 //! While limiting, the replica, comparator and clamp form a second feedback
@@ -35,12 +35,10 @@
 //! loop must meet (`>=`).
 
 use crate::context::Context;
-use crate::format::in_unit;
-use guardband_model::{BlockKind, Diagnostic, FieldValue, Severity};
+use crate::show::in_unit;
+use guardband_model::{BlockKind, Diagnostic, FieldValue};
 use guardband_syntax::Relation;
 use guardband_units::{Dimension, QuantityKind};
-
-const RULE: &str = "limit-loop-analysis";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for reg in ctx.model.regulators() {
@@ -56,7 +54,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 .collect();
             if analyses.is_empty() {
                 out.push(
-                    Diagnostic::error(RULE, limit.file, limit.header_span.clone(), format!("sensed limit `{}` has no stability analysis of its loop", limit.key()))
+                    ctx.at_block(limit, format!("sensed limit `{}` has no stability analysis of its loop", limit.key()))
                         .primary("a second feedback loop, never analysed")
                         .help(format!(
                             "add `analysis {}_loop {{ loop = {}  force vout = ...  break_at = pass.gate  require phase_margin >= 45 deg }}`",
@@ -75,11 +73,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 let forces: Vec<_> = a.fields_named("force").collect();
                 if forces.is_empty() {
                     out.push(
-                        Diagnostic::error(
-                            RULE,
-                            a.file,
-                            a.header_span.clone(),
-                            format!(
+                        ctx.at_block(a, format!(
                                 "analysis `{}` does not force the output into limiting",
                                 a.key()
                             ),
@@ -100,9 +94,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                                 .children(reg, BlockKind::Pin)
                                 .map(|p| p.key())
                                 .collect();
-                            let mut d = Diagnostic::error(
-                                RULE,
-                                a.file,
+                            let mut d = ctx.finding(a.file,
                                 f.key_span.clone(),
                                 format!(
                                     "analysis `{}` forces `{}`, which is not a pin of `{}`",
@@ -120,9 +112,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             continue;
                         }
                         Some(p) if p.choice("role") == Some("supply") => {
-                            let d = Diagnostic::error(
-                                RULE,
-                                a.file,
+                            let d = ctx.finding(a.file,
                                 f.key_span.clone(),
                                 format!(
                                     "analysis `{}` forces the supply pin `{}`; the limit loop is driven by forcing the output",
@@ -143,7 +133,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     let show = |x: f64| in_unit(x, v.kind, v.unit.as_deref());
                     if v.kind == QuantityKind::CURRENT {
                         out.push(
-                            Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!("analysis `{}` forces `{}` with an ideal current source", a.key(), f.key))
+                            ctx.finding(a.file, f.expr.span.clone(), format!("analysis `{}` forces `{}` with an ideal current source", a.key(), f.key))
                                 .primary("an ideal current source sets the current itself; the limit loop has nothing to do")
                                 .help("force with a voltage source below regulation, or a resistance"),
                         );
@@ -152,8 +142,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             && crate::compare::at_least(v.hi, out_v.lo)
                         {
                             let (forced, low) =
-                                crate::format::versus(v.hi, out_v.lo, v.kind, v.unit.as_deref());
-                            let d = Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
+                                crate::show::versus(v.hi, out_v.lo, v.kind, v.unit.as_deref());
+                            let d = ctx.finding(a.file, f.expr.span.clone(), format!(
                                     "analysis `{}` forces `{}` to {forced}, not below regulation ({low} minimum)",
                                     a.key(), f.key
                                 ))
@@ -167,7 +157,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         // With a resistance the output settles at R·I_limit if that is below regulation.
                         if crate::compare::at_least(v.hi * w.hi, out_v.lo) {
                             out.push(
-                                    Diagnostic::error(RULE, a.file, f.expr.span.clone(), format!(
+                                    ctx.finding(a.file, f.expr.span.clone(), format!(
                                         "analysis `{}`: {} × limit top {} = {} reaches regulation ({} minimum), so the loop may not limit",
                                         a.key(), show(v.hi), in_unit(w.hi, w.kind, w.unit.as_deref()),
                                         in_unit(v.hi * w.hi, QuantityKind::VOLTAGE, Some("V")),
@@ -186,8 +176,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 if !at_gate {
                     let span = ctx.value_span(a, "break_at");
                     out.push(
-                        Diagnostic::error(RULE, a.file, span, format!("analysis `{}` does not break the loop at the pass gate", a.key()))
-                            .with_severity(Severity::Warning)
+                        ctx.finding(a.file, span, format!("analysis `{}` does not break the loop at the pass gate", a.key()))
                             .primary(if a.field("break_at").is_some() { "breaks elsewhere" } else { "no `break_at`" })
                             .help("break at `pass.gate`, the node both loops share, with the clamp on the driving side"),
                     );
@@ -196,9 +185,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     if matches!(req.relation, Relation::AtMost | Relation::Below) {
                         let name = req.name.as_deref().unwrap_or("");
                         out.push(
-                            Diagnostic::error(
-                                RULE,
-                                a.file,
+                            ctx.finding(a.file,
                                 req.span.clone(),
                                 format!(
                                     "analysis `{}` requires {name} {} ...: a margin is a minimum",
@@ -211,48 +198,14 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         );
                     }
                 }
-                match a.choice("clamp_side") {
-                    Some("device") => out.push(
-                        Diagnostic::error(
-                            RULE,
-                            a.file,
-                            ctx.value_span(a, "clamp_side"),
-                            format!(
-                                "analysis `{}` has the clamp on the device side of the break",
-                                a.key()
-                            ),
-                        )
+                if a.choice("clamp_side") == Some("device") {
+                    out.push(
+                        ctx.at(a, "clamp_side", format!(
+                            "analysis `{}` has the clamp on the device side of the break",
+                            a.key()
+                        ))
                         .primary("the clamp must drive the gate from the driving side")
                         .help("connect the clamp on the driving side of the break (`clamp_side = driving`), so that the loop gain includes it"),
-                    ),
-                    Some(_) => {}
-                    None if a.field("clamp_side").is_none() => out.push(
-                        Diagnostic::error(
-                            RULE,
-                            a.file,
-                            a.header_span.clone(),
-                            format!(
-                                "analysis `{}` does not say which side of the break the clamp connects to",
-                                a.key()
-                            ),
-                        )
-                        .with_severity(Severity::Warning)
-                        .primary("no `clamp_side`")
-                        .help("add `clamp_side = driving` once the set-up puts the clamp on the driving side of the break"),
-                    ),
-                    None => {}
-                }
-                if a.named_field("require", "phase_margin").is_none() {
-                    out.push(
-                        Diagnostic::error(
-                            RULE,
-                            a.file,
-                            a.header_span.clone(),
-                            format!("analysis `{}` states no phase-margin requirement", a.key()),
-                        )
-                        .with_severity(Severity::Warning)
-                        .primary("no pass/fail criterion")
-                        .help("add `require phase_margin >= 45 deg` (or your design's figure)"),
                     );
                 }
             }

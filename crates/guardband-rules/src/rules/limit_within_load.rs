@@ -36,11 +36,9 @@
 use crate::compare;
 use crate::context::Context;
 use crate::derive::{Scheme, escape_ppm, sigmas_below, stat_settings, statistical};
-use crate::format::{difference, in_unit, percent, versus};
-use guardband_model::{Diagnostic, Severity, Value};
+use crate::show::{difference, in_unit, percent, versus};
+use guardband_model::{Diagnostic, Value};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "limit-within-load";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -70,11 +68,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 } else {
                     "equal to".to_string()
                 };
-                let mut diag = ctx
-                    .at(
-                        RULE,
-                        Severity::Error,
-                        limit,
+                let mut diag = ctx.at(limit,
                         key,
                         format!(
                             "`{}` limit low edge {low} is {relation} rated {} + {} margin = {need}",
@@ -93,24 +87,20 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 out.push(diag.help("raise the nominal threshold or tighten the largest contributor; the tool compares worst-case corners"));
                 continue;
             }
-            if ctx.config.statistical && lw.scheme == Scheme::Replica {
+            if ctx.options.statistical && lw.scheme == Scheme::Replica {
                 let Some(stat) = &lw.stat else { continue };
                 let ppm = escape_ppm(stat, required);
-                if ppm > ctx.config.escape_ppm {
-                    let mut diag = ctx
-                        .at(
-                            RULE,
-                            Severity::Error,
-                            limit,
+                if ppm > ctx.options.escape_ppm {
+                    let mut diag = ctx.at(limit,
                             key,
                             format!(
                                 "about {} of parts trip `{}` at or below rated {} + {} margin = {} (allowed {})",
-                                crate::format::ppm(ppm, sigmas_below(stat, required)),
+                                crate::show::ppm(ppm, sigmas_below(stat, required)),
                                 limit.key(),
                                 show(rated),
                                 percent(d.margin),
                                 show(required),
-                                crate::format::ppm(ctx.config.escape_ppm, None)
+                                crate::show::ppm(ctx.options.escape_ppm, None)
                             ),
                         )
                         .primary(format!(
@@ -131,7 +121,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
 }
 
 fn add_contributors(ctx: &Context, mut diag: Diagnostic, window: &Value) -> Diagnostic {
-    let stat = statistical(ctx.model, window, &stat_settings(ctx.config));
+    let stat = statistical(ctx.model, window, &stat_settings(ctx.options));
     for c in stat.contributors.iter().take(3) {
         let s = ctx.model.source(c.source);
         let term = window.terms.iter().find(|t| t.source == c.source);

@@ -27,9 +27,7 @@
 //! Add the missing `fault` blocks to the regulator, each naming its pin and event.
 
 use crate::context::Context;
-use guardband_model::{BlockKind, Diagnostic, Node, Severity};
-
-const RULE: &str = "missing-fault-case";
+use guardband_model::{BlockKind, Diagnostic, Node};
 
 fn event(f: &Node) -> Option<&str> {
     f.choice("event")
@@ -49,16 +47,11 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 .any(|f| event(f) == Some("short_to_ground"))
             {
                 out.push(
-                    Diagnostic::error(
-                        RULE,
-                        pin.file,
-                        pin.header_span.clone(),
-                        format!(
+                    ctx.at_block(pin, format!(
                             "off-chip pin `{}` has no short-to-ground fault case",
                             pin.key()
                         ),
                     )
-                    .with_severity(Severity::Warning)
                     .primary("can be shorted from outside")
                     .help(format!(
                         "add `fault {}_short {{ pin = {}  event = short_to_ground }}`",
@@ -74,16 +67,13 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 })
             {
                 out.push(
-                    Diagnostic::error(
-                        RULE,
-                        pin.file,
+                    ctx.finding(pin.file,
                         ctx.value_span(pin, "capacitance"),
                         format!(
                             "off-chip capacitor on `{}` has no startup fault case",
                             pin.key()
                         ),
                     )
-                    .with_severity(Severity::Warning)
                     .primary("charged by the startup surge")
                     .help(format!(
                         "add `fault {}_startup {{ pin = {}  event = startup }}`",
@@ -102,16 +92,11 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             });
             if !exercised {
                 out.push(
-                    Diagnostic::error(
-                        RULE,
-                        limit.file,
-                        limit.header_span.clone(),
-                        format!(
+                    ctx.at_block(limit, format!(
                             "limit `{}` has no fault case that exercises it",
                             limit.key()
                         ),
                     )
-                    .with_severity(Severity::Warning)
                     .primary("never exercised by the test plan")
                     .help(format!(
                         "add a fault case with `event = overload` or `exercises = {}`",

@@ -1,18 +1,41 @@
 //! One module per lint rule; each file opens with the rule's documentation.
+//! This list is the registry: module, name, default severity, summary.
 
-pub mod clamp_too_weak;
-pub mod conductor_under_rated;
-pub mod expectation_violated;
-pub mod figure_not_derived;
-pub mod limit_loop_analysis;
-pub mod limit_within_load;
-pub mod missing_fault_case;
-pub mod pass_device_weak;
-pub mod short_overheat;
-pub mod slow_start;
-pub mod supply_surge_exceeded;
-pub mod tolerance_missing;
-pub mod trip_uncharacterised;
-pub mod undervoltage_threshold_in_regulation;
-pub mod unlimited_surge;
-pub mod wire_rated_at_fusing;
+use guardband_model::Severity;
+
+crate::registry::declare_rules! {
+    limit_within_load: "limit-within-load", Some(Severity::Error),
+        "limit window's low edge at or below rated load plus margin";
+    conductor_under_rated: "conductor-under-rated", Some(Severity::Error),
+        "a conductor rated below the worst current that can flow through it";
+    unlimited_surge: "unlimited-surge", Some(Severity::Error),
+        "unlimited startup surge above a conductor rating or the supply surge limit";
+    missing_fault_case: "missing-fault-case", Some(Severity::Warning),
+        "an off-chip pin, limit or off-chip capacitor without its fault case";
+    limit_loop_analysis: "limit-loop-analysis", Some(Severity::Error),
+        "a sensed limit without a stability analysis, or one not set up to limit";
+    limit_loop_incomplete: "limit-loop-incomplete", Some(Severity::Warning),
+        "a limit-loop analysis that leaves its clamp side or pass criterion unstated";
+    clamp_too_weak: "clamp-too-weak", Some(Severity::Error),
+        "clamp drive not above the amplifier's output drive";
+    short_overheat: "short-overheat", Some(Severity::Error),
+        "junction above its limit in a sustained short without thermal shutdown";
+    slow_start: "slow-start", Some(Severity::Error),
+        "startup slower than required, or unable to start against the load";
+    trip_uncharacterised: "trip-uncharacterised", Some(Severity::Warning),
+        "undervoltage-triggered limit without a characterised trip current";
+    tolerance_missing: "tolerance-missing", Some(Severity::Info),
+        "an exact value feeding a worst-case derivation";
+    expectation_violated: "expectation-violated", Some(Severity::Error),
+        "a fault case's expectation contradicted by the derived worst case";
+    supply_surge_exceeded: "supply-surge-exceeded", Some(Severity::Error),
+        "a startup surge above the supply's surge limit, however it is bounded";
+    pass_device_weak: "pass-device-weak", Some(Severity::Error),
+        "a pass device that cannot deliver the rated load at its weak corner";
+    undervoltage_threshold_in_regulation: "undervoltage-threshold-in-regulation", Some(Severity::Error),
+        "an undervoltage threshold that reaches the output's regulation range";
+    wire_rated_at_fusing: "wire-rated-at-fusing", Some(Severity::Warning),
+        "a bond wire rated at its Preece fusing current, with no derating stated";
+    figure_not_derived: "figure-not-derived", Some(Severity::Info),
+        "a figure not derived because an input is missing or has an error";
+}

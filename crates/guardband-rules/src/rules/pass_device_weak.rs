@@ -25,11 +25,9 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::format::{difference, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity};
+use crate::show::{difference, versus};
+use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "pass-device-weak";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -47,11 +45,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         let unit = d.load_unit.as_deref().or(fg.unit.as_deref());
         let (weak, load) = versus(fg.lo, rated, QuantityKind::CURRENT, unit);
         let short = difference(fg.lo, rated, QuantityKind::CURRENT, unit);
-        let diag = ctx
-            .at(
-                RULE,
-                Severity::Error,
-                pass,
+        let diag = ctx.at(pass,
                 "full_gate_current",
                 format!(
                     "the pass device of `{}` delivers as little as {weak} at its weak corner, {short} below the rated load {load}",

@@ -30,11 +30,9 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::format::{difference, in_unit, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity};
+use crate::show::{difference, in_unit, versus};
+use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::{Dimension, QuantityKind};
-
-const RULE: &str = "short-overheat";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -81,11 +79,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         } else {
             "with the output shorted".to_string()
         };
-        let mut diag = ctx
-            .at(
-                RULE,
-                Severity::Error,
-                reg,
+        let mut diag = ctx.at(reg,
                 "junction_max",
                 format!(
                     "the junction of `{}` reaches {tj} {place}, {over} above the {lim} limit, {problem}",

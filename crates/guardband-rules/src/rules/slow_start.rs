@@ -33,11 +33,9 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::format::{difference, in_unit, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity};
+use crate::show::{difference, in_unit, versus};
+use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::{Dimension, QuantityKind};
-
-const RULE: &str = "slow-start";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -65,8 +63,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     QuantityKind::CURRENT,
                     d.load_unit.as_deref(),
                 );
-                let diag = ctx
-                    .at(RULE, Severity::Error, node, key, format!(
+                let diag = ctx.at(node, key, format!(
                         "`{}` cannot start: the charging current{at} can be as low as {i}, not above the load at startup {l}",
                         reg.key()
                     ))
@@ -121,8 +118,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             amps(s.load),
                         )
                     };
-                    let diag = ctx
-                        .at(RULE, Severity::Error, st, "time_max", format!(
+                    let diag = ctx.at(st, "time_max", format!(
                             "`{}` can take up to {took} to start{formula}, {late} over the required {need}",
                             reg.key(),
                         ))

@@ -28,11 +28,9 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::format::{difference, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity};
+use crate::show::{difference, versus};
+use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "supply-surge-exceeded";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -53,11 +51,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         let unit = max.unit.as_deref();
         let (surge, limit) = versus(s.surge, max.lo, QuantityKind::CURRENT, unit);
         let over = difference(s.surge, max.lo, QuantityKind::CURRENT, unit);
-        let diag = ctx
-            .at(
-                RULE,
-                Severity::Error,
-                start,
+        let diag = ctx.at(start,
                 "supply_surge_max",
                 format!(
                     "`{}` draws up to {surge} from the supply at startup, {over} above its {limit} surge limit ({})",

@@ -26,9 +26,7 @@
 //! or the range (`low .. high`) from the data sheet, process data or simulation.
 
 use crate::context::Context;
-use guardband_model::{BlockKind, Diagnostic, Severity};
-
-const RULE: &str = "tolerance-missing";
+use guardband_model::{BlockKind, Diagnostic};
 
 const WATCHED: &[(BlockKind, &[&str])] = &[
     (
@@ -63,16 +61,11 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 for key in ["mismatch", "drain_error"] {
                     if node.field(key).is_none() {
                         out.push(
-                            Diagnostic::error(
-                                RULE,
-                                node.file,
-                                node.header_span.clone(),
-                                format!(
+                            ctx.at_block(node, format!(
                                     "`{}` states no `{key}`, so the window takes it as exactly zero",
                                     node.path
                                 ),
                             )
-                            .with_severity(Severity::Info)
                             .primary(format!("no `{key}`"))
                             .help(format!("state it as a spread, e.g. `{key} = ± 5 %`")),
                         );
@@ -85,15 +78,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 };
                 if v.is_exact() {
                     out.push(
-                        ctx.at(
-                            RULE,
-                            Severity::Info,
-                            node,
+                        ctx.at(node,
                             key,
                             format!(
                                 "`{}.{key}` = {} is exact but feeds a worst-case derivation",
                                 node.path,
-                                crate::format::nominal(v)
+                                crate::show::nominal(v)
                             ),
                         )
                         .primary("no tolerance stated")

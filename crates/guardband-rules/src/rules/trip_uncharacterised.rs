@@ -26,9 +26,7 @@
 //! at which the output falls below the threshold, and state it as `trip_current`.
 
 use crate::context::Context;
-use guardband_model::{BlockKind, Diagnostic, Severity};
-
-const RULE: &str = "trip-uncharacterised";
+use guardband_model::{BlockKind, Diagnostic};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for reg in ctx.model.regulators() {
@@ -37,10 +35,9 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 && limit.field("trip_current").is_none()
             {
                 out.push(
-                    Diagnostic::error(RULE, limit.file, limit.header_span.clone(), format!(
+                    ctx.at_block(limit, format!(
                         "undervoltage-triggered limit `{}` states no characterised `trip_current`", limit.key()
                     ))
-                    .with_severity(Severity::Warning)
                     .primary("trip current unknown")
                     .help("the trip current depends on load and must come from characterisation; state it as `trip_current = LOW .. HIGH`"),
                 );

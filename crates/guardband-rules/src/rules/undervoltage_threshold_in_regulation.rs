@@ -26,11 +26,9 @@
 use crate::compare;
 use crate::context::Context;
 use crate::derive::Scheme;
-use crate::format::versus;
-use guardband_model::{Diagnostic, Severity};
+use crate::show::versus;
+use guardband_model::{Diagnostic};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "undervoltage-threshold-in-regulation";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -51,11 +49,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             }
             let limit = ctx.node(lw.node);
             let (t, o) = versus(th.hi, output.lo, QuantityKind::VOLTAGE, th.unit.as_deref());
-            let diag = ctx
-                .at(
-                    RULE,
-                    Severity::Error,
-                    limit,
+            let diag = ctx.at(limit,
                     "threshold_voltage",
                     format!(
                         "`{}` threshold can be {t}, not below the output's low edge {o}: the regulator may never leave fixed-current mode",

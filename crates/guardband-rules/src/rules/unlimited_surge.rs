@@ -30,11 +30,9 @@
 use crate::compare;
 use crate::context::Context;
 use crate::derive::Scheme;
-use crate::format::{in_unit, versus};
-use guardband_model::{BlockKind, Diagnostic, Severity};
+use crate::show::{in_unit, versus};
+use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "unlimited-surge";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -85,7 +83,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         }
         let rated = d
             .rated_load
-            .map(|r| format!(" ({}× rated load)", crate::format::number(surge / r)))
+            .map(|r| format!(" ({}× rated load)", crate::show::number(surge / r)))
             .unwrap_or_default();
         let uv = d
             .limits
@@ -99,11 +97,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             ),
             None => format!("`{}` starts with no limit", reg.key()),
         };
-        let mut diag = ctx
-            .at(
-                RULE,
-                Severity::Error,
-                pass,
+        let mut diag = ctx.at(pass,
                 worst.cause.key,
                 format!(
                     "{opening}: the full-gate surge of {}{rated} exceeds {}",

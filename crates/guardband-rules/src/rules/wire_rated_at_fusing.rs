@@ -27,11 +27,9 @@
 
 use crate::context::Context;
 use crate::derive::ConductorKind;
-use crate::format::in_unit;
-use guardband_model::{Diagnostic, Severity};
+use crate::show::in_unit;
+use guardband_model::{Diagnostic};
 use guardband_units::QuantityKind;
-
-const RULE: &str = "wire-rated-at-fusing";
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -43,17 +41,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             };
             let c = ctx.node(cr.node);
             out.push(
-                Diagnostic::error(
-                    RULE,
-                    c.file,
-                    c.header_span.clone(),
-                    format!(
+                ctx.at_block(c, format!(
                         "bond wire `{}` is rated at its Preece fusing current {}: no derating is stated",
                         c.key(),
                         in_unit(*rating, QuantityKind::CURRENT, None)
                     ),
                 )
-                .with_severity(Severity::Warning)
                 .primary("fusing current, not a rating")
                 .help("state `derating = ...` (the fraction of the fusing current the wire may carry) from the package's wire data"),
             );

@@ -9,7 +9,7 @@
 //! check depends on the order files were loaded in: the import-depth and
 //! file-count limits count from each entry here.
 
-use crate::{Config, Settings, check_with_settings};
+use crate::{Config, ConfigFile, check_with_config_file};
 use guardband_model::{Diagnostic, FileId, Severity, SourceFile, Workspace};
 use rayon::prelude::*;
 use std::collections::{HashMap, HashSet};
@@ -61,11 +61,11 @@ pub fn check_each(
     stack_bytes: usize,
 ) -> Result<Findings, (PathBuf, std::io::Error)> {
     let root = &root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
-    let settings = &Settings::read(root, read);
-    let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read, settings);
+    let config_file = &ConfigFile::read(root, read);
+    let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read, config_file);
     let units: Vec<Result<Unit, (PathBuf, std::io::Error)>> = if entries.is_empty() {
         // Nothing to check, but the configuration is still checked.
-        vec![check_one(root, &[], read, settings)]
+        vec![check_one(root, &[], read, config_file)]
     } else if threads <= 1 {
         entries.iter().map(one).collect()
     } else {
@@ -92,9 +92,9 @@ fn check_one(
     root: &Path,
     entries: &[PathBuf],
     read: &guardband_model::Read,
-    settings: &Settings,
+    config_file: &ConfigFile,
 ) -> Result<Unit, (PathBuf, std::io::Error)> {
-    let checked = check_with_settings(root, entries, read, settings)?;
+    let checked = check_with_config_file(root, entries, read, config_file)?;
     // Every file read as a spec, whatever its name (not guardband.toml).
     let guard_files = checked
         .ws

@@ -9,7 +9,7 @@
 //! a rule's own inequality. A third: the figures do not depend on the order
 //! of the blocks.
 
-use guardband_rules::{Checked, check_workspace};
+use guardband_check::{Checked, check_workspace};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngSeed};
 use std::collections::HashMap;

@@ -1,104 +1,24 @@
-//! `guardband.toml`: per-rule severities and the numbers the rules use.
-//!
-//! Every key is declared (and documented) in [`KEYS`]; unknown keys and bad
-//! values are errors pointing at their line in the file.
+//! `guardband.toml`: per-rule severities, the numbers the rules use and
+//! the driver's limits. Unknown keys, unknown rule names and bad values are
+//! errors pointing at their line in the file; the defaults stand in for any
+//! bad value. The keys are documented in REFERENCE.md.
 
 use guardband_model::{Diagnostic, FileId, Severity, Workspace, did_you_mean};
-use std::collections::HashMap;
+use guardband_rules::Options;
+use guardband_rules::derive::RangeMode;
 
-/// The settings the rules read.
-#[derive(Debug, Clone)]
+/// What `guardband.toml` says: the rules' options, and how the driver runs.
+#[derive(Debug, Clone, Default)]
 pub struct Config {
-    /// Required margin of a limit's low edge above rated load, as a fraction.
-    pub margin: f64,
-    /// Whether the statistical (root-sum-square) window is checked as well.
-    pub statistical: bool,
-    /// How many standard deviations one stated ± stands for.
-    pub sigma: f64,
-    /// How ranges (`lo .. hi`) enter the statistical window.
-    pub ranges: crate::derive::RangeMode,
-    /// Largest fraction of parts, in ppm, allowed to trip below rated load plus margin.
-    pub escape_ppm: f64,
-    /// Target lifetime for conductor ratings, in seconds (None: no lifetime derating).
-    pub lifetime: Option<f64>,
+    /// The numbers and severities the derivations and rules read.
+    pub options: Options,
     /// Exit 1 on warnings too.
     pub deny_warnings: bool,
-    /// Severity overrides by rule name; `None` turns a rule off.
-    pub severities: HashMap<String, Option<Severity>>,
     /// Where the file is, if there is one.
     pub file: Option<FileId>,
     /// Limits on file size, nesting, imports and evaluation (`[limits]`).
     pub limits: guardband_model::Limits,
 }
-
-impl Default for Config {
-    fn default() -> Self {
-        Config {
-            margin: 0.2,
-            statistical: true,
-            sigma: 3.0,
-            ranges: crate::derive::RangeMode::Uniform,
-            escape_ppm: 1.0,
-            lifetime: None,
-            deny_warnings: false,
-            severities: HashMap::new(),
-            file: None,
-            limits: guardband_model::Limits::default(),
-        }
-    }
-}
-
-/// Documented keys of `guardband.toml`: (key, what it takes, meaning, default).
-pub const KEYS: &[(&str, &str, &str, &str)] = &[
-    (
-        "margin",
-        "a percentage string such as \"20 %\", or a fraction",
-        "required margin of a limit's low edge above rated load",
-        "\"20 %\" (common practice, no source)",
-    ),
-    (
-        "statistical",
-        "true or false",
-        "also check the root-sum-square window",
-        "true",
-    ),
-    (
-        "sigma",
-        "a number",
-        "how many standard deviations a stated ± stands for",
-        "3",
-    ),
-    (
-        "ranges",
-        "\"uniform\" or \"bound\"",
-        "how a range `lo .. hi` enters the statistical window: as a uniform distribution, or as a bound added outside the root-sum-square",
-        "\"uniform\" (GUM rectangular distribution)",
-    ),
-    (
-        "escape_ppm",
-        "a number",
-        "largest share of parts (ppm) whose limit may trip below rated load plus margin, by the normal approximation",
-        "1 (common practice, no source)",
-    ),
-    (
-        "lifetime",
-        "a time string such as \"10 yr\"",
-        "target lifetime for electromigration ratings",
-        "none (no lifetime derating)",
-    ),
-    (
-        "deny",
-        "a list, e.g. [\"warnings\"]",
-        "also fail on warnings",
-        "[]",
-    ),
-    (
-        "[rules]",
-        "rule = \"error\" | \"warning\" | \"info\" | \"off\"",
-        "per-rule severity",
-        "each rule's default",
-    ),
-];
 
 fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
     let mut offset = 0;
@@ -247,26 +167,26 @@ const CONFIG_MAX_BYTES: usize = 1024 * 1024;
 /// checks: the file-by-file check applies it to every file's check, and its
 /// `[limits]` are known before anything is loaded.
 #[derive(Debug, Clone)]
-pub struct Settings {
+pub struct ConfigFile {
     path: std::path::PathBuf,
     /// The file's text, if there is one.
     text: Option<String>,
     /// Its settings, `file` not yet set.
     config: Config,
-    /// Its problems, pointing at [`Settings::UNPLACED`] until applied.
+    /// Its problems, pointing at [`ConfigFile::UNPLACED`] until applied.
     diagnostics: Vec<Diagnostic>,
 }
 
-impl Settings {
+impl ConfigFile {
     /// The file id problems carry before the file joins a workspace.
     const UNPLACED: FileId = FileId(u32::MAX);
 
     /// Reads `guardband.toml` at `root` (a canonical path) through `read`;
     /// a missing file gives the defaults.
-    pub fn read(root: &std::path::Path, read: &guardband_model::Read) -> Settings {
+    pub fn read(root: &std::path::Path, read: &guardband_model::Read) -> ConfigFile {
         let path = root.join("guardband.toml");
         let Ok(bytes) = read(&path, CONFIG_MAX_BYTES) else {
-            return Settings {
+            return ConfigFile {
                 path,
                 text: None,
                 config: Config::default(),
@@ -275,7 +195,7 @@ impl Settings {
         };
         let text = String::from_utf8_lossy(&bytes).into_owned();
         let (config, diagnostics) = Config::parse(&text, Self::UNPLACED);
-        Settings {
+        ConfigFile {
             path,
             text: Some(text),
             config,
@@ -311,21 +231,6 @@ impl Settings {
 }
 
 impl Config {
-    /// Reads `guardband.toml` at the workspace root, if present. Problems are
-    /// diagnostics in that file (added to the workspace so they can be shown);
-    /// the defaults stand in for any bad value.
-    pub fn load(ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
-        Config::load_with(ws, &guardband_model::read_source)
-    }
-
-    /// Like [`Config::load`], reading through `read` (an editor's buffers).
-    pub fn load_with(
-        ws: &mut Workspace,
-        read: &guardband_model::Read,
-    ) -> (Config, Vec<Diagnostic>) {
-        Settings::read(&ws.root, read).apply(ws)
-    }
-
     /// The settings in `text`, with its problems as diagnostics in `file`;
     /// the defaults stand in for any bad value.
     fn parse(text: &str, file: FileId) -> (Config, Vec<Diagnostic>) {
@@ -366,9 +271,9 @@ impl Config {
         for (key, value) in &table {
             match key.as_str() {
                 "margin" => match value {
-                    toml::Value::Float(f) => config.margin = *f,
+                    toml::Value::Float(f) => config.options.margin = *f,
                     toml::Value::String(s) => match quantity(s) {
-                        Some((v, k)) if k.dim.is_none() => config.margin = v,
+                        Some((v, k)) if k.dim.is_none() => config.options.margin = v,
                         _ => diags.push(bad(
                             key,
                             format!("`margin = \"{s}\"` is not a percentage"),
@@ -382,7 +287,7 @@ impl Config {
                     )),
                 },
                 "statistical" => match value {
-                    toml::Value::Boolean(b) => config.statistical = *b,
+                    toml::Value::Boolean(b) => config.options.statistical = *b,
                     _ => diags.push(bad(
                         key,
                         "`statistical` takes true or false".into(),
@@ -390,8 +295,8 @@ impl Config {
                     )),
                 },
                 "sigma" => match value {
-                    toml::Value::Float(f) if *f > 0.0 => config.sigma = *f,
-                    toml::Value::Integer(i) if *i > 0 => config.sigma = *i as f64,
+                    toml::Value::Float(f) if *f > 0.0 => config.options.sigma = *f,
+                    toml::Value::Integer(i) if *i > 0 => config.options.sigma = *i as f64,
                     _ => diags.push(bad(
                         key,
                         "`sigma` takes a positive number".into(),
@@ -399,8 +304,8 @@ impl Config {
                     )),
                 },
                 "ranges" => match value.as_str() {
-                    Some("uniform") => config.ranges = crate::derive::RangeMode::Uniform,
-                    Some("bound") => config.ranges = crate::derive::RangeMode::Bound,
+                    Some("uniform") => config.options.ranges = RangeMode::Uniform,
+                    Some("bound") => config.options.ranges = RangeMode::Bound,
                     _ => diags.push(bad(
                         key,
                         "`ranges` takes \"uniform\" or \"bound\"".into(),
@@ -408,8 +313,8 @@ impl Config {
                     )),
                 },
                 "escape_ppm" => match value {
-                    toml::Value::Float(f) if *f >= 0.0 => config.escape_ppm = *f,
-                    toml::Value::Integer(i) if *i >= 0 => config.escape_ppm = *i as f64,
+                    toml::Value::Float(f) if *f >= 0.0 => config.options.escape_ppm = *f,
+                    toml::Value::Integer(i) if *i >= 0 => config.options.escape_ppm = *i as f64,
                     _ => diags.push(bad(
                         key,
                         "`escape_ppm` takes a number of parts per million".into(),
@@ -418,7 +323,7 @@ impl Config {
                 },
                 "lifetime" => match value.as_str().and_then(quantity) {
                     Some((v, k)) if k.dim == guardband_units::Dimension::TIME && v > 0.0 => {
-                        config.lifetime = Some(v)
+                        config.options.lifetime = Some(v)
                     }
                     _ => diags.push(bad(
                         key,
@@ -453,9 +358,9 @@ impl Config {
                 "rules" => match value.as_table() {
                     Some(rules) => {
                         for (rule, sev) in rules {
-                            if !crate::registry().iter().any(|r| r.name == rule) {
+                            if !guardband_rules::registry().iter().any(|r| r.name == rule) {
                                 let names: Vec<&str> =
-                                    crate::registry().iter().map(|r| r.name).collect();
+                                    guardband_rules::registry().iter().map(|r| r.name).collect();
                                 let help = did_you_mean(rule, names.iter().copied())
                                     .map(|s| format!("did you mean `{s}`?"))
                                     .unwrap_or_else(|| {
@@ -473,7 +378,7 @@ impl Config {
                             };
                             match level {
                                 Some(l) => {
-                                    config.severities.insert(rule.clone(), l);
+                                    config.options.severities.insert(rule.clone(), l);
                                 }
                                 None => diags.push(bad(
                                     rule,
@@ -502,10 +407,5 @@ impl Config {
             }
         }
         (config, diags)
-    }
-
-    /// The severity a rule runs at: the override, else its default.
-    pub fn severity(&self, rule: &str, default: Option<Severity>) -> Option<Severity> {
-        self.severities.get(rule).copied().unwrap_or(default)
     }
 }

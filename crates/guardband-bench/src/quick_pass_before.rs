@@ -1,5 +1,11 @@
-//! A recursive-descent parser for files without syntax errors: the common
-//! case on every keystroke and in every CI run.
+//! The hand-written recursive-descent quick pass that the syntax crate used
+//! before its one chumsky grammar took over, kept here only so that the
+//! benchmark can print the parse speed before and after in one run. It is
+//! not used by guardband.
+//!
+//! (Its original notes follow.) A recursive-descent parser for files
+//! without syntax errors: the common case on every keystroke and in every
+//! CI run.
 //!
 //! It accepts exactly the grammar of the chumsky parser in
 //! [`crate::parser`] and builds the same tree, but records nothing about
@@ -10,15 +16,14 @@
 //! parse. Tests hold the two parsers together on every example, on
 //! generated specs and on every prefix and mangling of them.
 
-use crate::Span;
-use crate::ast::*;
-use crate::lexer::{NumberToken, Token};
-use crate::parser::MAX_CHAIN;
+#![allow(missing_docs)]
+
+use guardband_syntax::*;
 use std::sync::Arc;
 
 /// The items of a file that parses without error, or `None` when the file
 /// needs the full parser (an error somewhere, or nesting beyond `max_nesting`).
-pub(crate) fn parse_clean(
+pub fn parse_clean(
     source: &str,
     tokens: &[(Token<'_>, Span)],
     max_nesting: usize,
@@ -174,7 +179,7 @@ impl<'s> Fast<'_, 's> {
         self.at += 1;
         let value = self.expr()?;
         let span = keyword.span.start..value.span.end;
-        Some(Member::Field(Field {
+        Some(Member::Field(Statement {
             keyword,
             name,
             relation,
@@ -429,7 +434,7 @@ impl<'s> Fast<'_, 's> {
 }
 
 /// A number literal and its unit, as the full parser builds it.
-pub(crate) fn number_expr(source: &str, token: NumberToken, span: Span) -> Expr {
+fn number_expr(source: &str, token: NumberToken, span: Span) -> Expr {
     let text = &source[span.clone()];
     let value = text[..token.number_len].parse::<f64>().unwrap_or(f64::NAN);
     let unit = token.unit_start.map(|start| Ident {
@@ -443,7 +448,7 @@ pub(crate) fn number_expr(source: &str, token: NumberToken, span: Span) -> Expr 
 }
 
 /// `-inner`: folded into a number literal, else a negation node.
-pub(crate) fn negate(inner: Expr, span: Span) -> Expr {
+fn negate(inner: Expr, span: Span) -> Expr {
     match inner.kind {
         ExprKind::Number { value, unit } => Expr {
             kind: ExprKind::Number {
@@ -459,186 +464,5 @@ pub(crate) fn negate(inner: Expr, span: Span) -> Expr {
             })),
             span,
         },
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use crate::parser::{MAX_NESTING, parse_with_recovery_only, quick_pass_accepts};
-    use crate::{Parse, parse_with};
-    use proptest::prelude::*;
-
-    /// The quick pass takes a file exactly when the full parser finds no
-    /// error in it, and then builds the same tree.
-    fn agree(source: &str, max_nesting: usize) {
-        let full: Parse = parse_with_recovery_only(source, max_nesting);
-        let quick = quick_pass_accepts(source, max_nesting);
-        assert_eq!(
-            quick,
-            full.errors.is_empty(),
-            "quick pass {} but the full parser found {:?} in {source:?}",
-            if quick { "took it" } else { "refused it" },
-            full.errors
-        );
-        assert_eq!(
-            parse_with(source, max_nesting),
-            full,
-            "trees differ for {source:?}"
-        );
-    }
-
-    fn examples() -> Vec<String> {
-        let top = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
-        let mut out = Vec::new();
-        for dir in [
-            "examples",
-            "examples/flawed",
-            "examples/process",
-            "tests/fixtures/diagnostics",
-        ] {
-            for e in std::fs::read_dir(top.join(dir)).expect("folder").flatten() {
-                if e.path().extension().is_some_and(|x| x == "guard")
-                    && let Ok(text) = std::fs::read_to_string(e.path())
-                {
-                    out.push(text);
-                }
-            }
-        }
-        assert!(out.len() >= 15, "examples missing");
-        out
-    }
-
-    #[test]
-    fn both_parsers_agree_on_every_example_and_fixture() {
-        let mut clean = 0;
-        for text in examples() {
-            agree(&text, MAX_NESTING);
-            clean += usize::from(quick_pass_accepts(&text, MAX_NESTING));
-        }
-        // The examples are mostly clean: the quick pass must be taking them.
-        assert!(clean >= 6, "quick pass took only {clean} examples");
-    }
-
-    #[test]
-    fn both_parsers_agree_on_prefixes_and_manglings_of_the_examples() {
-        for text in examples() {
-            let cuts: Vec<usize> = (0..text.len())
-                .step_by(13)
-                .filter(|i| text.is_char_boundary(*i))
-                .collect();
-            for i in cuts {
-                agree(&text[..i], MAX_NESTING);
-                // The same file with one token's worth of text removed.
-                let rest = text[i..].char_indices().nth(3).map(|(j, _)| i + j);
-                if let Some(j) = rest {
-                    agree(&format!("{}{}", &text[..i], &text[j..]), MAX_NESTING);
-                }
-            }
-        }
-    }
-
-    #[test]
-    fn nesting_at_and_past_the_limit() {
-        for depth in [1, 2, 3, 4] {
-            let src = format!("r x {{ a = {}1{} }}", "(".repeat(depth), ")".repeat(depth));
-            agree(&src, 3);
-            let src = format!("r x {}{}", "p q { ".repeat(depth), "}".repeat(depth));
-            agree(&src, 3);
-        }
-    }
-
-    #[test]
-    fn the_quirks_of_the_grammar() {
-        for src in [
-            "r x { a = 1 A +10 % -20 % }",
-            "r x { a = c + 10 % - 20 % }",
-            "r x { a = 1 A +10 % }",
-            "r x { a = 1 A +10 % - 20 % }",
-            "r x { a = - - -2 mA }",
-            "r x { a = -(b) }",
-            "r x { a = ± 5 % }",
-            "r x { a = 1 ± ± 2 }",
-            "r x { a = f() b = g(1,) c = h(1, 2) }",
-            "r x { a = f(,) }",
-            "r x { a = p.q(1) }",
-            "r x { a = p. }",
-            "r x { a = 1 .. }",
-            "r x { a = 1 .. 2 .. 3 }",
-            "r x { a == 1 }",
-            "r x { expect current <= 400 mA force vout = 1.5 V }",
-            "r x { a b c = 1 }",
-            "use \"a.guard\" use b",
-            "use \"a.guard\"\nr x { }",
-            "r { } x",
-            "r x { a = \"s\" b = true c = false }",
-            "r x { a = 1 @ 2 }",
-            "",
-            "}",
-        ] {
-            agree(src, MAX_NESTING);
-        }
-        let long = |n: usize, op: &str| format!("r x {{ a = {} }}", vec!["1"; n].join(op));
-        for n in [63, 64, 65, 66] {
-            agree(&long(n, " + "), MAX_NESTING);
-            agree(&long(n, " * "), MAX_NESTING);
-            agree(&format!("r x {{ a = {}1 }}", "-".repeat(n)), MAX_NESTING);
-        }
-    }
-
-    /// Snippets that are each a token or two of the language, some of them
-    /// touching, so that random strings of them reach every rule.
-    fn soup() -> impl Strategy<Value = String> {
-        let words = vec![
-            "regulator ",
-            "r ",
-            "x ",
-            "pin ",
-            "{ ",
-            "} ",
-            "( ",
-            ") ",
-            "= ",
-            "<= ",
-            ">= ",
-            "< ",
-            "> ",
-            "1 ",
-            "2 mA ",
-            "3.5 V ",
-            "- ",
-            "-",
-            "+",
-            "+ ",
-            "* ",
-            "/ ",
-            "± ",
-            ".. ",
-            ", ",
-            ".",
-            "\"s\" ",
-            "true ",
-            "false ",
-            "use ",
-            "+10 % ",
-            "-20 % ",
-            "min",
-            "\n",
-            "@ ",
-            "// c\n",
-            "== ",
-        ];
-        proptest::collection::vec(prop::sample::select(words), 0..40)
-            .prop_map(|parts| parts.concat())
-    }
-
-    proptest! {
-        #![proptest_config(ProptestConfig::with_cases(2000))]
-
-        #[test]
-        fn both_parsers_agree_on_token_soup(body in soup()) {
-            agree(&body, MAX_NESTING);
-            agree(&format!("regulator r {{ a = {body} }}"), 4);
-            agree(&format!("regulator r {{ {body} }}"), MAX_NESTING);
-        }
     }
 }

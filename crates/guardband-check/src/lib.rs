@@ -1,0 +1,121 @@
+//! The guardband driver: everything between files on disk (or in an
+//! editor) and the rules. It finds the workspace root, reads
+//! `guardband.toml`, loads the entry files and their imports, builds and
+//! evaluates the model, runs the derivations and the lint rules, and sorts
+//! and caps the findings. The command line, the language server, the report
+//! and the benchmarks all check through here, so they cannot disagree.
+
+pub mod batch;
+pub mod config;
+mod root;
+
+pub use batch::{Findings, check_each};
+pub use config::{Config, ConfigFile};
+pub use root::workspace_root;
+
+use guardband_model::{Diagnostic, Model, Severity, Workspace};
+use guardband_rules::Derived;
+use std::path::{Path, PathBuf};
+
+/// Stack of every thread that checks: evaluation and lowering recurse over
+/// trees whose depth the parser bounds (`[limits] max_nesting`); this is
+/// room for the deepest tree the hard limit allows, with margin.
+pub const STACK_BYTES: usize = 256 * 1024 * 1024;
+
+/// Everything one check of a workspace produced: the CLI prints it, the
+/// language server publishes it and answers hovers from it. Both build it
+/// with [`check_workspace`], so they can never disagree.
+pub struct Checked {
+    pub ws: Workspace,
+    pub config: Config,
+    pub model: Model,
+    /// One entry per regulator, in the order of [`Model::regulators`].
+    pub derived: Vec<Derived>,
+    /// Every finding, spans normalised, sorted by [`sort_diagnostics`].
+    pub diagnostics: Vec<Diagnostic>,
+}
+
+impl Checked {
+    /// Number of findings of one severity.
+    pub fn count(&self, severity: Severity) -> usize {
+        self.diagnostics
+            .iter()
+            .filter(|d| d.severity == severity)
+            .count()
+    }
+
+    /// The derivation of the regulator with this node id.
+    pub fn derived_for(&self, regulator: guardband_model::NodeId) -> Option<&Derived> {
+        self.model
+            .regulators()
+            .position(|r| r.id == regulator)
+            .and_then(|i| self.derived.get(i))
+    }
+}
+
+/// The whole check: load `entries` and their imports under `root` through
+/// `read`, read `guardband.toml`, build and evaluate the model, derive, run
+/// the rules. Unreadable entry files are an error naming the path.
+pub fn check_workspace(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+) -> Result<Checked, (PathBuf, std::io::Error)> {
+    let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    check_with_config_file(&root, entries, read, &ConfigFile::read(&root, read))
+}
+
+/// [`check_workspace`] with `guardband.toml` already read from the
+/// canonical `root`, for running many checks with one configuration.
+pub fn check_with_config_file(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+    config_file: &ConfigFile,
+) -> Result<Checked, (PathBuf, std::io::Error)> {
+    let mut diagnostics = Vec::new();
+    let mut ws =
+        guardband_model::load_with(root, entries, read, config_file.limits(), &mut diagnostics)?;
+    let (config, config_diagnostics) = config_file.apply(&mut ws);
+    diagnostics.extend(config_diagnostics);
+    let (model, model_diagnostics) = guardband_model::check_with(&ws, &config.limits);
+    diagnostics.extend(model_diagnostics);
+    let derived: Vec<Derived> = model
+        .regulators()
+        .map(|r| guardband_rules::derive(&model, r, &config.options))
+        .collect();
+    let mut diagnostics =
+        guardband_rules::lint(&ws, &model, &config.options, &derived, diagnostics);
+    ws.normalize_spans(&mut diagnostics);
+    sort_diagnostics(&ws, &mut diagnostics);
+    let diagnostics =
+        guardband_model::limits::cap_findings(diagnostics, config.limits.max_findings_per_rule);
+    Ok(Checked {
+        ws,
+        config,
+        model,
+        derived,
+        diagnostics,
+    })
+}
+
+/// The order every front end shows findings in: by file (display path),
+/// position, rule, then message (so that equal findings sit together).
+pub fn sort_diagnostics(ws: &Workspace, diagnostics: &mut [Diagnostic]) {
+    diagnostics.sort_by(|a, b| {
+        (
+            ws.file(a.file).display.as_str(),
+            a.span.start,
+            a.span.end,
+            a.rule,
+            &a.message,
+        )
+            .cmp(&(
+                ws.file(b.file).display.as_str(),
+                b.span.start,
+                b.span.end,
+                b.rule,
+                &b.message,
+            ))
+    });
+}
