@@ -16,7 +16,7 @@ fn examples_show_each_rule_where_documented() {
     assert!(
         run.stdout
             .trim_end()
-            .ends_with("14 errors, 5 warnings, 3 infos in 7 files"),
+            .ends_with("16 errors, 5 warnings, 3 infos in 8 files"),
         "{}",
         run.stdout
     );
@@ -46,6 +46,8 @@ fn examples_show_each_rule_where_documented() {
         ),
         ("wire-rated-at-fusing", "flawed/flash_rail.guard"),
         ("figure-not-derived", "flawed/flash_rail.guard"),
+        ("load-line-latch", "flawed/heater_rail.guard"),
+        ("rated-load-overheat", "flawed/heater_rail.guard"),
     ];
     for d in report["diagnostics"].as_array().unwrap() {
         let rule = d["rule"].as_str().unwrap();
@@ -179,7 +181,10 @@ fn each_slip_gives_exactly_its_findings() {
             "plus_minus_typo",
             &[("unit-mismatch", 1), ("figure-not-derived", 1)],
         ),
-        ("unit_on_one_end", &[("unit-mismatch", 1)]),
+        (
+            "unit_on_one_end",
+            &[("unit-mismatch", 1), ("figure-not-derived", 1)],
+        ),
         (
             "coulomb_for_celsius",
             &[("unit-mismatch", 1), ("figure-not-derived", 1)],

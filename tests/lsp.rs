@@ -255,6 +255,14 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
             "conductor hover lacks `{want}`:\n{conductor}"
         );
     }
+    // The thermal shutdown shows the junction at rated load beside the fault heat.
+    let shutdown = hover(&mut client, pos16(&text, "thermal_shutdown {", 0, 3));
+    for want in ["rated load in regulation: junction", "sustained short"] {
+        assert!(
+            shutdown.contains(want),
+            "thermal shutdown hover lacks `{want}`:\n{shutdown}"
+        );
+    }
     assert_eq!(client.stop(), Some(0));
 }
 

@@ -25,7 +25,7 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
     let summary = report(&["examples"], &out);
     assert!(summary.contains("does not replace sign-off"), "the caution");
     assert!(
-        summary.contains("14 errors, 5 warnings, 3 infos"),
+        summary.contains("16 errors, 5 warnings, 3 infos"),
         "{summary}"
     );
     for regulator in [
@@ -35,6 +35,7 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
         "lamp_rail",
         "wake_rail",
         "flash_rail",
+        "heater_rail",
     ] {
         assert!(
             summary.contains(&format!("## Regulator `{regulator}`")),

@@ -1,7 +1,8 @@
 //! Soundness of the derived bounds: random specs of both limit schemes are
 //! written out, checked, and then every stated tolerance is drawn at random
 //! points inside its range (and at its corners); the physical current,
-//! dissipation, junction temperature and startup time are computed by the
+//! dissipation, junction temperature (in a fault and at rated load) and
+//! startup time are computed by the
 //! direct formulas below (textbook relations: I = min of the caps in force,
 //! P = (Vin − V)·I, T_J = T_A + P·θJA, dV/dt = min(slew, (I − load)/C)),
 //! and each must lie inside the bounds the checker reports. A second
@@ -128,7 +129,7 @@ fn spec_text(s: &Spec) -> String {
         .unwrap_or_default();
     format!(
         "process p {{\n    metal top {{\n        thickness = 1 um\n        current_density = 1 mA/um^2\n        reference_temperature = 110 °C\n        reference_lifetime = 10 yr\n        activation_energy = 0.8 eV\n        current_exponent = 2\n    }}\n}}\n\
-         regulator r {{\n    supply = {} V .. {} V\n    output = {} V ± {}\n    load = 0 mA .. {}\n    ambient = {} °C .. {} °C\n    theta_ja = {} K/W ± {}\n    junction_max = {} °C\n\
+         regulator r {{\n    supply = {} V .. {} V\n    output = {} V ± {}\n    load = 0 mA .. {}\n    quiescent = 50 uA .. 200 uA\n    ambient = {} °C .. {} °C\n    theta_ja = {} K/W ± {}\n    junction_max = {} °C\n\
          \x20   pin vout {{ off_chip = true  capacitance = {} uF ± {} }}\n\
          \x20   pass {{ full_gate_current = {} .. {}  amplifier_drive = 20 uA ± 10 % }}\n{limit}\
          \x20   startup {{\n        time_max = {} us\n        load = {}\n{slew}    }}\n\
@@ -179,6 +180,9 @@ struct Draw {
     c: f64,
     full_gate: f64,
     slew: Option<f64>,
+    /// The load current in regulation and the quiescent current, A.
+    load: f64,
+    quiescent: f64,
     /// The cap at output voltage `v` from the limit (`None`: no cap there).
     cap: CapAt,
     /// Voltages where the cap changes shape, for finding maxima.
@@ -232,6 +236,16 @@ fn draw(s: &Spec, u: &mut dyn FnMut() -> f64) -> Draw {
         c: s.capacitance.at(u()),
         full_gate: s.full_gate.at(u()),
         slew: s.slew.map(|r| r.at(u())),
+        load: Range {
+            lo: 0.0,
+            hi: s.load,
+        }
+        .at(u()),
+        quiescent: Range {
+            lo: 50e-6,
+            hi: 200e-6,
+        }
+        .at(u()),
         cap,
         knees,
     }
@@ -440,6 +454,7 @@ proptest! {
         let worst = d.worst.as_ref().expect("worst current derived").value;
         let overload = d.overload.as_ref().expect("overload heat derived");
         let start = d.startup.as_ref().expect("startup derived");
+        let normal = d.normal.as_ref().expect("heat at rated load derived");
         let currents = d.currents.as_ref().expect("currents");
         let (short_hi, _) = currents.upper_at(0.0).expect("short current");
         let short_lo = currents.lower_at(0.0);
@@ -451,6 +466,10 @@ proptest! {
             if let Some(lo) = short_lo {
                 prop_assert!(i0 >= lo * (1.0 - 1e-6), "short {i0} below {lo}");
             }
+            // In regulation: P = (Vin − Vout)·I_load + I_q·Vin, T_J = T_A + P·θJA.
+            let normal_tj = p.ambient
+                + ((p.vin - p.vout).max(0.0) * p.load + p.quiescent * p.vin) * p.theta;
+            prop_assert!(within(normal_tj, normal.junction), "rated-load junction {normal_tj} above {}\n{text}", normal.junction);
             let power = p.worst_power();
             prop_assert!(within(power, overload.power), "power {power} above {}\n{text}", overload.power);
             let tj = p.ambient + power * p.theta;

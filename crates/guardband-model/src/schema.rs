@@ -73,6 +73,12 @@ const fn q(dim: Dimension) -> FieldType {
 }
 const CURRENT: FieldType = FieldType::Quantity(QuantityKind::CURRENT);
 const VOLTAGE: FieldType = FieldType::Quantity(QuantityKind::VOLTAGE);
+/// A load: a current, a resistance or a constant power.
+const LOAD: FieldType = FieldType::AnyOf(&[
+    QuantityKind::CURRENT,
+    QuantityKind::of(Dimension::RESISTANCE),
+    QuantityKind::of(Dimension::POWER),
+]);
 const RATIO: FieldType = FieldType::Quantity(QuantityKind::NONE);
 const ABS_TEMP: FieldType = FieldType::Quantity(QuantityKind::ABSOLUTE_TEMPERATURE);
 const DELTA_TEMP: FieldType = FieldType::Quantity(QuantityKind::TEMPERATURE_DIFFERENCE);
@@ -141,8 +147,18 @@ pub const BLOCKS: &[BlockSpec] = &[
             ),
             f(
                 "load",
+                LOAD,
+                "the load: a current range, a resistance (I = V/R) or a constant power (I = P/V); the rated load is the most it draws in regulation",
+            ),
+            f(
+                "load_cutoff",
+                VOLTAGE,
+                "output voltage below which a constant-power load draws nothing (its own undervoltage lockout)",
+            ),
+            f(
+                "quiescent",
                 CURRENT,
-                "load current range; the rated load is its maximum",
+                "current the regulator itself draws from the supply in regulation (ground current)",
             ),
             f("ambient", ABS_TEMP, "ambient temperature range"),
             f(
@@ -414,8 +430,13 @@ pub const BLOCKS: &[BlockSpec] = &[
             ),
             f(
                 "load",
-                CURRENT,
-                "load during startup (default: the rated load)",
+                LOAD,
+                "load during startup: a current, a resistance or a constant power (default: the regulator's load)",
+            ),
+            f(
+                "load_cutoff",
+                VOLTAGE,
+                "output voltage below which a constant-power startup load draws nothing",
             ),
             DESCRIPTION,
         ],

@@ -148,7 +148,7 @@ fn value(
     if v.terms.is_empty() {
         return;
     }
-    let _ = writeln!(out, "Bounds by {}.\n", v.bounds.describe());
+    let _ = writeln!(out, "Bounds: {}.\n", v.bounds.describe());
     let stat = statistical(model, v, &stat_settings(options));
     let _ = writeln!(
         out,
@@ -208,11 +208,18 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
         }
         BlockKind::ThermalShutdown | BlockKind::Foldback => matches!(
             r.role,
-            Role::ShortHeat | Role::OverloadHeat | Role::FaultTemperature | Role::ShortCurrent
+            Role::ShortHeat
+                | Role::OverloadHeat
+                | Role::RatedLoadHeat
+                | Role::FaultTemperature
+                | Role::ShortCurrent
         ),
         BlockKind::Fault => match event {
             Some("short_to_ground") => matches!(r.role, Role::ShortCurrent | Role::ShortHeat),
-            Some("overload") => matches!(r.role, Role::WorstCurrent | Role::OverloadHeat),
+            Some("overload") => matches!(
+                r.role,
+                Role::WorstCurrent | Role::OverloadHeat | Role::Recovery
+            ),
             Some("startup") => matches!(r.role, Role::StartupSurge | Role::StartupTime),
             _ => false,
         },

@@ -326,8 +326,10 @@ pub fn worst_current(model: &Model, reg: &Node, c: &Currents) -> Figure<WorstCur
         .quantity(cause.key)
         .and_then(|v| v.unit.as_deref().map(str::to_string))
         .or_else(|| {
-            reg.quantity("load")
-                .and_then(|l| l.unit.as_deref().map(str::to_string))
+            super::load::Load::read(reg, "load")
+                .ok()
+                .flatten()
+                .and_then(|l| l.current_unit().map(str::to_string))
         });
     Ok(WorstCurrent {
         value,

@@ -196,14 +196,14 @@ pub fn hottest(pieces: &[Piece], supply: f64) -> Option<(f64, f64, f64, usize)> 
 }
 
 /// Time to charge `capacitance` from 0 V to `v_end` when the current
-/// available at each output voltage is at least `pieces` minus a constant
-/// `load`, and the output rises no faster than `slew` (when given):
+/// available at each output voltage is at least `pieces` minus a straight
+/// `load` line (a constant current, or `V/R` for a resistance), and the output rises no faster than `slew` (when given):
 /// `t = ∫ max(1/slew, C / (I(V) − load)) dV`. `Err(v)` when the net
 /// current is not positive at output voltage `v`: the output stalls there.
 pub fn charge_time(
     pieces: &[Piece],
     capacitance: f64,
-    load: f64,
+    load: Line,
     v_end: f64,
     slew: Option<f64>,
 ) -> Result<f64, f64> {
@@ -214,8 +214,8 @@ pub fn charge_time(
             continue;
         }
         let net = Line {
-            a: p.line.a - load,
-            b: p.line.b,
+            a: p.line.a - load.a,
+            b: p.line.b - load.b,
         };
         for v in [v0, v1] {
             if net.at(v) <= 0.0 {
@@ -316,11 +316,14 @@ mod tests {
     #[test]
     fn charge_time_of_a_flat_current_and_of_a_soft_start() {
         let env = lowest(&[Cap::flat(0, 0.15)], 3.3).unwrap();
-        let t = charge_time(&env, 10e-6, 0.05, 3.3, None).unwrap();
+        let t = charge_time(&env, 10e-6, Line::flat(0.05), 3.3, None).unwrap();
         assert!(close(t, 330e-6));
-        let t = charge_time(&env, 10e-6, 0.05, 3.3, Some(1e3)).unwrap();
+        let t = charge_time(&env, 10e-6, Line::flat(0.05), 3.3, Some(1e3)).unwrap();
         assert!(close(t, 3.3e-3));
-        assert_eq!(charge_time(&env, 10e-6, 0.15, 3.3, None), Err(0.0));
+        assert_eq!(
+            charge_time(&env, 10e-6, Line::flat(0.15), 3.3, None),
+            Err(0.0)
+        );
     }
 
     // A linearly rising current I = a + b·V gives t = C·ln(I(V1)/I(V0))/b
@@ -336,7 +339,7 @@ mod tests {
             2.0,
         )
         .unwrap();
-        let t = charge_time(&env, 1e-6, 0.0, 2.0, None).unwrap();
+        let t = charge_time(&env, 1e-6, Line::flat(0.0), 2.0, None).unwrap();
         assert!(close(t, 1e-6 * 3f64.ln() / 0.1));
     }
 }

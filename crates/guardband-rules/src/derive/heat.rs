@@ -5,6 +5,7 @@
 
 use super::current::Currents;
 use super::envelope;
+use super::load::{Load, LoadKind};
 use super::unknown::{Figure, both, need};
 use crate::physics::thermal;
 use guardband_model::{BlockKind, Model, Node};
@@ -106,6 +107,46 @@ pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<He
     });
     let missing = || super::unknown::Unknown::because("the current is not bounded");
     (short.ok_or_else(missing), worst.ok_or_else(missing))
+}
+
+/// Heat in normal operation: the largest `(Vin,max − V)·I_load(V)` over the
+/// regulated output `V` from its low to its high edge, with `I_load` the
+/// load's heaviest draw, plus the quiescent current's `I_q,max·Vin,max`;
+/// the junction at the maximum ambient and θJA (T_J = T_A + P·θJA).
+///
+/// For a constant current or power the product falls as `V` rises, so the
+/// low edge of the output is worst; for a resistance `(Vin − V)·V/R` peaks
+/// at `V = Vin/2` when that lies inside the output's range.
+pub fn normal(reg: &Node) -> Figure<Heat> {
+    let ((inp, load), (output, quiescent)) = both(
+        both(inputs(reg), Load::need(reg, "load")),
+        both(need(reg, "output"), need(reg, "quiescent")),
+    )?;
+    let vin = inp.supply.1;
+    let mut candidates = vec![output.lo, output.hi];
+    if load.kind == LoadKind::Resistance && vin / 2.0 > output.lo && vin / 2.0 < output.hi {
+        candidates.push(vin / 2.0);
+    }
+    let (at_voltage, load_power) = candidates
+        .into_iter()
+        .map(|v| (v, (vin - v).max(0.0) * load.heaviest(v)))
+        .max_by(|a, b| a.1.total_cmp(&b.1).then(b.0.total_cmp(&a.0)))
+        .unwrap_or((output.lo, 0.0));
+    let power = load_power + dissipation(vin, quiescent.hi);
+    Ok(Heat {
+        at_voltage,
+        current: load.heaviest(at_voltage),
+        reason: format!(
+            "the rated load, {}, plus the quiescent current",
+            load.describe()
+        ),
+        power,
+        junction: junction(inp.ambient.1, power, inp.theta.1),
+        junction_lo: None,
+        supply: vin,
+        ambient: inp.ambient.1,
+        theta: inp.theta.1,
+    })
 }
 
 /// The hottest the die gets in a fault, K, and why.

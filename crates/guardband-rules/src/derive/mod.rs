@@ -10,6 +10,7 @@ pub mod conductor;
 pub mod current;
 pub mod envelope;
 pub mod heat;
+pub mod load;
 pub mod startup;
 pub mod statistics;
 pub mod unknown;
@@ -19,6 +20,7 @@ pub mod window;
 pub use conductor::{Carries, ConductorKind, ConductorRating, Unrated};
 pub use current::{Cause, Currents, WorstCurrent};
 pub use heat::{FaultTemperature, Heat};
+pub use load::{Load, LoadKind, Shortfall};
 pub use startup::Startup;
 pub use statistics::{
     Contributor, RangeMode, StatSettings, Statistical, escape_ppm, sigmas_below, statistical,
@@ -33,7 +35,11 @@ use guardband_model::{BlockKind, Model, Node, NodeId};
 #[derive(Debug, Clone)]
 pub struct Derived {
     pub regulator: NodeId,
-    /// The top of `load`, A; `None` when `load` is not known.
+    /// The load, when it can be read.
+    pub load: Option<Load>,
+    /// The most the load draws in regulation, A (the top of a current
+    /// range, `Vout,max/R,min` for a resistance, `P,max/Vout,min` for a
+    /// constant power); `None` when it is not known.
     pub rated_load: Option<f64>,
     pub load_unit: Option<String>,
     /// Required margin of a limit's low edge above rated load, a fraction.
@@ -46,6 +52,12 @@ pub struct Derived {
     pub short: Figure<Heat>,
     /// The worst point of a partial short or overload.
     pub overload: Figure<Heat>,
+    /// Heat in normal operation: the rated load and the quiescent current.
+    pub normal: Figure<Heat>,
+    /// Recovery after an overload: where, between 0 V and the highest
+    /// regulated output, the least current delivered first fails to exceed
+    /// the load's heaviest draw (`None`: it always exceeds it).
+    pub recovery: Figure<Option<Shortfall>>,
     /// The hottest the die gets in a fault.
     pub fault_temperature: Figure<FaultTemperature>,
     pub startup: Figure<Startup>,
@@ -100,11 +112,22 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         .children(reg, BlockKind::Conductor)
         .map(|c| conductor::rate(&inputs, c))
         .collect();
-    let load = reg.quantity("load");
+    let load = Load::read(reg, "load").ok().flatten();
+    let output = reg.quantity("output");
+    let rated_load = load.as_ref().and_then(|l| match l.kind {
+        LoadKind::Current => Some(l.hi),
+        _ => output.and_then(|o| l.heaviest_over(o.lo, o.hi)),
+    });
+    let recovery = recovery(reg, &currents);
     Derived {
         regulator: reg.id,
-        rated_load: load.map(|l| l.hi),
-        load_unit: load.and_then(|l| l.unit.as_deref().map(str::to_string)),
+        rated_load,
+        load_unit: load
+            .as_ref()
+            .and_then(|l| l.current_unit().map(str::to_string)),
+        load,
+        normal: heat::normal(reg),
+        recovery,
         margin: reg
             .quantity("margin")
             .map(|m| m.nom)
@@ -119,6 +142,15 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         startup,
         conductors,
     }
+}
+
+/// Where the least delivered current first fails to exceed the load, from
+/// 0 V up to the highest regulated output (see [`Derived::recovery`]).
+fn recovery(reg: &Node, currents: &Figure<Currents>) -> Figure<Option<Shortfall>> {
+    let c = currents.as_ref().map_err(Clone::clone)?;
+    let lower = c.lower.as_ref().map_err(Clone::clone)?;
+    let (load, output) = unknown::both(Load::need(reg, "load"), unknown::need(reg, "output"))?;
+    Ok(load::first_shortfall(lower, &load, output.hi))
 }
 
 #[cfg(test)]

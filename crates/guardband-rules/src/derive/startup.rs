@@ -11,6 +11,7 @@
 
 use super::current::Currents;
 use super::envelope;
+use super::load::{self, Load, LoadKind, Shortfall};
 use super::unknown::{Figure, Unknown, need, optional};
 use guardband_model::{BlockKind, Model, Node, NodeId};
 
@@ -21,8 +22,13 @@ pub struct Startup {
     pub capacitance: f64,
     /// Highest output voltage reached, V.
     pub voltage: f64,
-    /// Largest load during startup, A.
+    /// Largest load current anywhere on the ramp, A (infinite for a
+    /// constant power without a cutoff).
     pub load: f64,
+    /// The load during startup.
+    pub load_line: Load,
+    /// Where the output stalls, when it does: what is delivered and drawn there.
+    pub stall: Option<Shortfall>,
     /// Peak current drawn from the supply while starting, A.
     pub surge: f64,
     pub surge_reason: String,
@@ -72,9 +78,9 @@ pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure
     }
     let output = need(reg, "output")?;
     let start = model.child(reg, BlockKind::Startup);
-    let load = match start.map(|s| optional(s, "load")).transpose()?.flatten() {
+    let load = match start.map(|s| Load::read(s, "load")).transpose()?.flatten() {
         Some(l) => l,
-        None => need(reg, "load")?,
+        None => Load::need(reg, "load")?,
     };
     let slew = match start {
         Some(s) => optional(s, "slew")?,
@@ -84,9 +90,12 @@ pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure
     let (peak, _, by) =
         envelope::highest(&c.upper).ok_or_else(|| Unknown::because("no current is bounded"))?;
     let cause = c.cause(by);
+    // The heaviest the load draws anywhere on the ramp (unbounded for a
+    // constant power without a cutoff, which then cannot start at all).
+    let heaviest = load.heaviest_over(0.0, output.hi).unwrap_or(f64::INFINITY);
     let (surge, surge_reason, surge_from, unlimited) = match slew {
-        Some(s) if cap.1 * s.hi + load.hi < peak => (
-            cap.1 * s.hi + load.hi,
+        Some(s) if cap.1 * s.hi + heaviest < peak => (
+            cap.1 * s.hi + heaviest,
             "the soft-start ramp C·dV/dt plus the startup load".to_string(),
             (start.map(|s| s.id).unwrap_or(reg.id), "slew"),
             false,
@@ -101,14 +110,20 @@ pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure
     let charge_min = envelope::least(lower).unwrap_or(0.0);
     let charge_flat = lower
         .iter()
-        .all(|p| p.line.b == 0.0 && p.line.a == lower[0].line.a);
-    let time = envelope::charge_time(lower, cap.1, load.hi, output.hi, slew.map(|s| s.lo));
+        .all(|p| p.line.b == 0.0 && p.line.a == lower[0].line.a)
+        && load.kind == LoadKind::Current;
+    let time = load::charge_time(lower, cap.1, &load, true, output.hi, slew.map(|s| s.lo));
+    let stall = time
+        .err()
+        .and_then(|_| load::first_shortfall(lower, &load, output.hi));
     let time_lo =
-        envelope::charge_time(&c.upper, cap.0, load.lo, output.lo, slew.map(|s| s.hi)).ok();
+        load::charge_time(&c.upper, cap.0, &load, false, output.lo, slew.map(|s| s.hi)).ok();
     Ok(Startup {
         capacitance: cap.1,
         voltage: output.hi,
-        load: load.hi,
+        load: heaviest,
+        load_line: load,
+        stall,
         surge,
         surge_reason,
         surge_from,

@@ -23,6 +23,8 @@ pub enum Role {
     ShortCurrent,
     ShortHeat,
     OverloadHeat,
+    RatedLoadHeat,
+    Recovery,
     FaultTemperature,
     StartupSurge,
     StartupTime,
@@ -287,6 +289,64 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
             }
             Err(u) => out.push(not_derived(reg, &format!("{label}: junction"), u)),
         }
+    }
+    let reg_node = model.node(d.regulator);
+    let wants_normal_heat = reg_node.field("junction_max").is_some()
+        || model
+            .child(reg_node, guardband_model::BlockKind::ThermalShutdown)
+            .is_some();
+    match &d.normal {
+        Ok(h) => {
+            let mut r = row(
+                reg,
+                Role::RatedLoadHeat,
+                "rated load in regulation: junction",
+                format!(
+                    "{} at {} dissipated",
+                    celsius(h.junction),
+                    in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
+                ),
+            );
+            r.basis = format!(
+                "T_A + ((Vin − V)·I_load + I_q·Vin)·θJA, with Vin {}, V {}, I_load {}, θJA {} from {}",
+                volts(h.supply),
+                volts(h.at_voltage),
+                amps(h.current, unit),
+                in_unit(
+                    h.theta,
+                    QuantityKind::of(Dimension::THERMAL_RESISTANCE),
+                    None
+                ),
+                celsius(h.ambient),
+            );
+            r.details.push(h.reason.clone());
+            out.push(r);
+        }
+        Err(u) if wants_normal_heat => {
+            out.push(not_derived(reg, "rated load in regulation: junction", u))
+        }
+        Err(_) => {}
+    }
+    if let (Some(load), Ok(recovery)) = (&d.load, &d.recovery)
+        && load.kind != super::LoadKind::Current
+    {
+        let value = match recovery {
+            Some(sh) if sh.drawn.is_finite() => format!(
+                "latches at {}: the load draws {} there, the least delivered is {}",
+                volts(sh.at_voltage),
+                amps(sh.drawn, unit),
+                amps(sh.delivered, unit)
+            ),
+            Some(sh) => format!(
+                "latches at {}: the load draws without bound there",
+                volts(sh.at_voltage)
+            ),
+            None => "the least current delivered clears the load line from 0 V to regulation"
+                .to_string(),
+        };
+        let mut r = row(reg, Role::Recovery, "recovery after an overload", value);
+        r.basis = format!("the load is {}", load.describe());
+        out.push(r);
     }
     match &d.fault_temperature {
         Ok(t) => {

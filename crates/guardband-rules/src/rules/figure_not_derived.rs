@@ -1,11 +1,12 @@
 //! ## What it flags
 //! A figure the checker could not derive because an input it needs is
 //! missing or has an error: a limit's window, the worst current, the heat
-//! of a short or overload, startup. One finding per block, naming each
+//! of a short or overload, heat at rated load, startup. One finding per block, naming each
 //! figure and what it lacks. Rules that need such a figure stay silent
 //! rather than guess, so this finding says which checks did not run.
 //! Heat is reported when the spec asks for it (a junction limit, a thermal
-//! shutdown, θJA or a junction expectation), startup when it has a
+//! shutdown, θJA or a junction expectation; heat at rated load, which
+//! needs `quiescent`, with a junction limit or a thermal shutdown), startup when it has a
 //! `startup` block or a startup fault case.
 //!
 //! ## Why it matters
@@ -59,6 +60,11 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             || faults().any(|f| f.named_field("expect", "junction").is_some());
         if let (Err(u), true) = (&d.overload, wants_heat) {
             figures.push(("heat in a short or overload", u));
+        }
+        let wants_normal_heat = reg.field("junction_max").is_some()
+            || ctx.model.child(reg, BlockKind::ThermalShutdown).is_some();
+        if let (Err(u), true) = (&d.normal, wants_normal_heat) {
+            figures.push(("heat at rated load", u));
         }
         let wants_startup = ctx.model.child(reg, BlockKind::Startup).is_some()
             || faults().any(|f| f.choice("event") == Some("startup"));

@@ -36,6 +36,10 @@ crate::registry::declare_rules! {
         "an undervoltage threshold that reaches the output's regulation range";
     wire_rated_at_fusing: "wire-rated-at-fusing", Some(Severity::Warning),
         "a bond wire rated at its Preece fusing current, with no derating stated";
+    rated_load_overheat: "rated-load-overheat", Some(Severity::Error),
+        "a junction at rated load above its limit or at the thermal shutdown's trip point";
+    load_line_latch: "load-line-latch", Some(Severity::Error),
+        "a least delivered current that does not clear the load line from 0 V to regulation";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }

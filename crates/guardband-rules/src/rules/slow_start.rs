@@ -34,6 +34,7 @@
 use crate::compare;
 use crate::context::Context;
 use crate::show::{difference, in_unit, versus};
+use crate::derive::LoadKind;
 use guardband_model::{BlockKind, Diagnostic};
 use guardband_units::{Dimension, QuantityKind};
 
@@ -57,17 +58,31 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 } else {
                     String::new()
                 };
-                let (i, l) = versus(
-                    s.charge_min,
-                    s.load,
-                    QuantityKind::CURRENT,
-                    d.load_unit.as_deref(),
-                );
+                // What is delivered and drawn where it stalls (for a current
+                // load, the least charging current and the load itself).
+                let (delivered, drawn) = match s.stall {
+                    Some(sh) if s.load_line.kind != LoadKind::Current => (sh.delivered, sh.drawn),
+                    _ => (s.charge_min, s.load),
+                };
+                let drawn_text = if drawn.is_finite() {
+                    versus(delivered, drawn, QuantityKind::CURRENT, d.load_unit.as_deref()).1
+                } else {
+                    "without bound (a constant power with no `load_cutoff`, as the output nears 0 V)".to_string()
+                };
+                let i = if drawn.is_finite() {
+                    versus(delivered, drawn, QuantityKind::CURRENT, d.load_unit.as_deref()).0
+                } else {
+                    amps(delivered)
+                };
+                let what = match s.load_line.kind {
+                    LoadKind::Current => format!("load at startup {}", amps(s.load)),
+                    _ => format!("load at startup: {}", s.load_line.describe()),
+                };
                 let diag = ctx.at(node, key, format!(
-                        "`{}` cannot start: the charging current{at} can be as low as {i}, not above the load at startup {l}",
+                        "`{}` cannot start: the charging current{at} can be as low as {i}, not above what the load draws there, {drawn_text}",
                         reg.key()
                     ))
-                    .primary(format!("load at startup {}", amps(s.load)))
+                    .primary(what)
                     .help("raise the fixed or limited current, or hold the load off until the output is up (`startup { load = ... }`)");
                 out.push(diag);
             }
