@@ -24,6 +24,13 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
     let out = temp_dir("report-examples");
     let summary = report(&["examples"], &out);
     assert!(summary.contains("does not replace sign-off"), "the caution");
+    // Every waiver is listed with its reason for the sign-off.
+    assert!(
+        summary.contains(
+            "- flawed/lamp_rail.guard at line 13: waives `tolerance-missing`: board-level figure from the module maker's thermal report"
+        ),
+        "{summary}"
+    );
     assert!(
         summary.contains("16 errors, 5 warnings, 3 infos"),
         "{summary}"

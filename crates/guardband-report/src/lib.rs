@@ -58,6 +58,39 @@ fn finding(
     )
 }
 
+/// Every waiver in the checked files with its reason, so that a sign-off
+/// sees each finding that was accepted rather than fixed, and why.
+fn waivers(ws: &guardband_model::Workspace, md: &mut String) {
+    let _ = writeln!(
+        md,
+        "## Waivers
+"
+    );
+    let list = guardband_rules::suppress::collect(ws, &mut Vec::new());
+    if list.is_empty() {
+        let _ = writeln!(
+            md,
+            "None.
+"
+        );
+        return;
+    }
+    for w in &list {
+        let file = ws.file(w.file);
+        let at = file.line_index.line_col(w.span.start);
+        let rules: Vec<String> = w.rules.iter().map(|r| format!("`{r}`")).collect();
+        let _ = writeln!(
+            md,
+            "- {} at line {}: waives {}: {}",
+            file.display,
+            at.line + 1,
+            rules.join(", "),
+            w.reason
+        );
+    }
+    md.push('\n');
+}
+
 /// The summary text and each regulator's chart (name, SVG text).
 pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
     let model = &checked.model;
@@ -134,6 +167,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         md.push('\n');
         charts.push((reg.key().to_string(), chart::chart(&f).to_string()));
     }
+    waivers(ws, &mut md);
     let elsewhere: Vec<_> = checked
         .diagnostics
         .iter()

@@ -22,6 +22,8 @@ pub struct Waiver {
     /// What it covers (see the module documentation); `None`: nothing.
     pub covers: Option<Range<usize>>,
     pub rules: Vec<String>,
+    /// Why the finding is acceptable, as written after the `:`.
+    pub reason: String,
     pub used: bool,
 }
 
@@ -169,6 +171,7 @@ pub fn collect(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Vec<Waiver>
                 span: c.span.clone(),
                 covers: covered(&file.text, tree, &c.span, own_line),
                 rules,
+                reason: reason.to_string(),
                 used: false,
             });
         }
