@@ -257,7 +257,12 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
     }
     // The thermal shutdown shows the junction at rated load beside the fault heat.
     let shutdown = hover(&mut client, pos16(&text, "thermal_shutdown {", 0, 3));
-    for want in ["rated load in regulation: junction", "sustained short"] {
+    for want in [
+        "rated load in regulation: junction",
+        "sustained short",
+        "cycling in a sustained short",
+        "period at least",
+    ] {
         assert!(
             shutdown.contains(want),
             "thermal shutdown hover lacks `{want}`:\n{shutdown}"

@@ -396,6 +396,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 DELTA_TEMP,
                 "temperature drop before it restarts",
             ),
+            f(
+                "time_constant",
+                TIME,
+                "thermal time constant of the die and package (one-pole model), for the cycle period",
+            ),
             DESCRIPTION,
         ],
     },

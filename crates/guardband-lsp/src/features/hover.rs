@@ -211,6 +211,7 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
             Role::ShortHeat
                 | Role::OverloadHeat
                 | Role::RatedLoadHeat
+                | Role::Cycling
                 | Role::FaultTemperature
                 | Role::ShortCurrent
         ),

@@ -179,3 +179,59 @@ pub fn fault_temperature(
         (Err(u), None) => Err(u.clone()),
     }
 }
+
+/// A sustained short under a thermal shutdown: the junction heats to the
+/// trip point, the shutdown turns the pass device off, the die cools by the
+/// hysteresis and the block restarts, again and again.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Cycling {
+    /// The junction swing, the hysteresis's low and high edge, K.
+    pub swing: (f64, f64),
+    /// The shortest cycle period, s, when `time_constant` is stated.
+    pub period_min: Option<f64>,
+}
+
+/// How a sustained short cycles under the thermal shutdown (see
+/// [`Cycling`]); `Ok(None)` when there is no shutdown with a hysteresis,
+/// or when the short cannot reach the trip point at any corner, or the die
+/// cannot cool to the restart point above the ambient at any corner.
+///
+/// With a one-pole thermal model (T(t) = T_f + (T_0 − T_f)·e^(−t/τ),
+/// textbook first-order response), heating from trip − h to trip towards
+/// T_f = T_A + Q takes τ·ln((Q − x + h)/(Q − x)), and cooling from trip to
+/// trip − h towards T_A takes τ·ln(x/(x − h)), with x = trip − T_A. Both
+/// grow with h and τ; heating shrinks as Q grows and grows with x, cooling
+/// shrinks with x: each term is taken at its own least corner, so the sum
+/// bounds the period from below (`crates/guardband-check/tests/cycling.rs`
+/// checks it against the hand calculation and sampled corners).
+pub fn cycling(model: &Model, reg: &Node, short: &Figure<Heat>) -> Figure<Option<Cycling>> {
+    let Some(tsd) = model.child(reg, BlockKind::ThermalShutdown) else {
+        return Ok(None);
+    };
+    let Some(hyst) = super::unknown::optional(tsd, "hysteresis")? else {
+        return Ok(None);
+    };
+    let trip = need(tsd, "threshold")?;
+    let heat = short.as_ref().map_err(Clone::clone)?;
+    let (ambient_lo, ambient_hi) = (need(reg, "ambient")?.lo, heat.ambient);
+    let rise = heat.junction - heat.ambient;
+    let (x_lo, x_hi) = (trip.lo - ambient_hi, trip.hi - ambient_lo);
+    let h = hyst.lo;
+    // Cycling needs a corner where the short heats past the trip point
+    // (Q > x) and the die can cool to the restart point above the ambient
+    // (x > h); with x ≥ h that also needs Q > h.
+    if h <= 0.0 || x_hi <= h || rise <= x_lo.max(h) {
+        return Ok(None);
+    }
+    let tau = super::unknown::optional(tsd, "time_constant")?.map(|t| t.lo);
+    let period_min = tau.map(|tau| {
+        let x = x_lo.max(h * (1.0 + 1e-12));
+        let heating = tau * ((rise - x + h) / (rise - x)).ln();
+        let cooling = tau * (x_hi / (x_hi - h)).ln();
+        heating + cooling
+    });
+    Ok(Some(Cycling {
+        swing: (hyst.lo, hyst.hi),
+        period_min,
+    }))
+}

@@ -19,7 +19,7 @@ pub mod window;
 
 pub use conductor::{Carries, ConductorKind, ConductorRating, Unrated};
 pub use current::{Cause, Currents, WorstCurrent};
-pub use heat::{FaultTemperature, Heat};
+pub use heat::{Cycling, FaultTemperature, Heat};
 pub use load::{Load, LoadKind, Shortfall};
 pub use startup::Startup;
 pub use statistics::{
@@ -58,6 +58,8 @@ pub struct Derived {
     /// regulated output, the least current delivered first fails to exceed
     /// the load's heaviest draw (`None`: it always exceeds it).
     pub recovery: Figure<Option<Shortfall>>,
+    /// How a sustained short cycles under the thermal shutdown.
+    pub cycling: Figure<Option<Cycling>>,
     /// The hottest the die gets in a fault.
     pub fault_temperature: Figure<FaultTemperature>,
     pub startup: Figure<Startup>,
@@ -100,6 +102,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         .and_then(|c| current::worst_current(model, reg, c));
     let (short, overload) = heat::heat(reg, &currents);
     let fault_temperature = heat::fault_temperature(model, reg, &overload);
+    let cycling = heat::cycling(model, reg, &short);
     let startup = startup::startup(model, reg, &currents);
     let inputs = conductor::RatingInputs {
         model,
@@ -139,6 +142,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         short,
         overload,
         fault_temperature,
+        cycling,
         startup,
         conductors,
     }

@@ -25,6 +25,7 @@ pub enum Role {
     OverloadHeat,
     RatedLoadHeat,
     Recovery,
+    Cycling,
     FaultTemperature,
     StartupSurge,
     StartupTime,
@@ -346,6 +347,27 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         };
         let mut r = row(reg, Role::Recovery, "recovery after an overload", value);
         r.basis = format!("the load is {}", load.describe());
+        out.push(r);
+    }
+    if let Ok(Some(c)) = &d.cycling {
+        let kelvin = |k: f64| in_unit(k, QuantityKind::TEMPERATURE_DIFFERENCE, Some("K"));
+        let swing = if c.swing.0 < c.swing.1 {
+            format!("{} .. {}", kelvin(c.swing.0), kelvin(c.swing.1))
+        } else {
+            kelvin(c.swing.1)
+        };
+        let value = match c.period_min {
+            Some(p) => format!(
+                "junction swing {swing}, period at least {} (at most {} cycles per hour)",
+                in_unit(p, QuantityKind::of(Dimension::TIME), None),
+                crate::show::number((3600.0 / p).ceil())
+            ),
+            None => format!(
+                "junction swing {swing}; state `thermal_shutdown.time_constant` for the period"
+            ),
+        };
+        let mut r = row(reg, Role::Cycling, "cycling in a sustained short", value);
+        r.basis = "between the trip point and trip − hysteresis; one-pole thermal model, each term at its least corner".to_string();
         out.push(r);
     }
     match &d.fault_temperature {
