@@ -4,21 +4,13 @@
 //! T_A + Q takes τ·ln((Q − x + h)/(Q − x)), cooling back takes
 //! τ·ln(x/(x − h)), with x = trip − T_A.
 
-use guardband_check::{Checked, check_workspace};
-use std::collections::HashMap;
-use std::path::{Path, PathBuf};
+mod common;
 
+use guardband_check::Checked;
+
+/// Checks one spec text as a one-file workspace held in memory.
 fn check(text: &str) -> Checked {
-    let root = std::env::temp_dir();
-    let path: PathBuf = root.join("cycling-spec.guard");
-    let files: HashMap<PathBuf, Vec<u8>> = [(path.clone(), text.as_bytes().to_vec())].into();
-    let read = move |p: &Path, _limit: usize| {
-        files
-            .get(p)
-            .cloned()
-            .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
-    };
-    check_workspace(&root, &[path], &read).expect("in-memory check")
+    common::check("cycling-spec.guard", text)
 }
 
 fn spec(supply: &str, ambient: &str, theta: &str, reference: &str, shutdown: &str) -> String {

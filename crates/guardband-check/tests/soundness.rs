@@ -10,11 +10,11 @@
 //! a rule's own inequality. A third: the figures do not depend on the order
 //! of the blocks.
 
-use guardband_check::{Checked, check_workspace};
+mod common;
+
+use guardband_check::Checked;
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngSeed};
-use std::collections::HashMap;
-use std::path::{Path, PathBuf};
 
 /// A value stated as `nom ± tol` (tol a fraction).
 #[derive(Debug, Clone, Copy)]
@@ -156,16 +156,7 @@ fn spec_text(s: &Spec) -> String {
 
 /// Checks one spec text as a one-file workspace held in memory.
 fn check(text: &str) -> Checked {
-    let root = std::env::temp_dir();
-    let path: PathBuf = root.join("soundness-spec.guard");
-    let files: HashMap<PathBuf, Vec<u8>> = [(path.clone(), text.as_bytes().to_vec())].into();
-    let read = move |p: &Path, _limit: usize| {
-        files
-            .get(p)
-            .cloned()
-            .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
-    };
-    check_workspace(&root, &[path], &read).expect("in-memory check")
+    common::check("soundness-spec.guard", text)
 }
 
 /// A limit's cap at an output voltage (`None`: no cap there).

@@ -51,6 +51,24 @@ pub struct Row {
     pub sources: Vec<(FileId, std::ops::Range<usize>)>,
 }
 
+/// "T_J at P dissipated", for heat rows.
+fn dissipated(h: &super::Heat) -> String {
+    format!(
+        "{} at {} dissipated",
+        celsius(h.junction),
+        in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
+    )
+}
+
+/// The θJA a heat row used.
+fn theta(h: &super::Heat) -> String {
+    in_unit(
+        h.theta,
+        QuantityKind::of(Dimension::THERMAL_RESISTANCE),
+        None,
+    )
+}
+
 fn row(node: NodeId, role: Role, label: impl Into<String>, value: impl Into<String>) -> Row {
     Row {
         node,
@@ -263,27 +281,14 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
     ] {
         match heat {
             Ok(h) => {
-                let mut r = row(
-                    reg,
-                    role,
-                    format!("{label}: junction"),
-                    format!(
-                        "{} at {} dissipated",
-                        celsius(h.junction),
-                        in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
-                    ),
-                );
+                let mut r = row(reg, role, format!("{label}: junction"), dissipated(h));
                 r.basis = format!(
                     "T_A + (Vin − V)·I·θJA = {} + ({} − {}) × {} × {}",
                     celsius(h.ambient),
                     volts(h.supply),
                     volts(h.at_voltage),
                     amps(h.current, unit),
-                    in_unit(
-                        h.theta,
-                        QuantityKind::of(Dimension::THERMAL_RESISTANCE),
-                        None
-                    )
+                    theta(h)
                 );
                 r.details.push(format!("the current there is {}", h.reason));
                 out.push(r);
@@ -302,22 +307,14 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
                 reg,
                 Role::RatedLoadHeat,
                 "rated load in regulation: junction",
-                format!(
-                    "{} at {} dissipated",
-                    celsius(h.junction),
-                    in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
-                ),
+                dissipated(h),
             );
             r.basis = format!(
                 "T_A + ((Vin − V)·I_load + I_q·Vin)·θJA, with Vin {}, V {}, I_load {}, θJA {} from {}",
                 volts(h.supply),
                 volts(h.at_voltage),
                 amps(h.current, unit),
-                in_unit(
-                    h.theta,
-                    QuantityKind::of(Dimension::THERMAL_RESISTANCE),
-                    None
-                ),
+                theta(h),
                 celsius(h.ambient),
             );
             r.details.push(h.reason.clone());
