@@ -116,6 +116,12 @@ pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure
     let stall = time
         .err()
         .and_then(|_| load::first_shortfall(lower, &load, output.hi));
+    // The exact crossing, where the net current first stops being positive
+    // (the integral only tells which piece it lies on).
+    let time = match (time, stall) {
+        (Err(_), Some(sh)) => Err(sh.at_voltage),
+        (t, _) => t,
+    };
     let time_lo =
         load::charge_time(&c.upper, cap.0, &load, false, output.lo, slew.map(|s| s.hi)).ok();
     Ok(Startup {

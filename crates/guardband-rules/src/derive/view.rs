@@ -407,8 +407,12 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
                 ),
             };
             let mut r = row(reg, Role::StartupTime, "startup time", time);
+            let load = match s.load_line.kind {
+                super::LoadKind::Current => format!("{} load", amps(s.load, unit)),
+                _ => format!("the load, {}", s.load_line.describe()),
+            };
             r.basis = format!(
-                "charge {} to {} with at least {} less {} load",
+                "charge {} to {} with at least {} less {load}",
                 in_unit(
                     s.capacitance,
                     QuantityKind::of(Dimension::CAPACITANCE),
@@ -416,7 +420,6 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
                 ),
                 volts(s.voltage),
                 amps(s.charge_min, unit),
-                amps(s.load, unit)
             );
             out.push(r);
         }

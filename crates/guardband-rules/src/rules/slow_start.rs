@@ -87,6 +87,10 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 out.push(diag);
             }
             Ok(t) => {
+                let load_text = match s.load_line.kind {
+                    LoadKind::Current => format!("{} load", amps(s.load)),
+                    _ => format!("the load, {}", s.load_line.describe()),
+                };
                 let Some(st) = start else { continue };
                 let Some(max) = st.quantity("time_max") else {
                     continue;
@@ -97,7 +101,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     let late = difference(t, max.lo, kind, max.unit.as_deref());
                     let formula = if let Some(slew) = st.quantity("slew") {
                         format!(
-                            " (a soft start of at least {}, charging {} to {} with at least {} less {} load)",
+                            " (a soft start of at least {}, charging {} to {} with at least {} less {})",
                             in_unit(slew.lo, slew.kind, slew.unit.as_deref()),
                             in_unit(
                                 s.capacitance,
@@ -106,7 +110,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             ),
                             in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
                             amps(s.charge_min),
-                            amps(s.load),
+                            load_text,
                         )
                     } else if s.charge_flat {
                         format!(
@@ -122,7 +126,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         )
                     } else {
                         format!(
-                            " (charging {} to {} with at least {} less {} load)",
+                            " (charging {} to {} with at least {} less {})",
                             in_unit(
                                 s.capacitance,
                                 QuantityKind::of(Dimension::CAPACITANCE),
@@ -130,7 +134,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             ),
                             in_unit(s.voltage, QuantityKind::VOLTAGE, Some("V")),
                             amps(s.charge_min),
-                            amps(s.load),
+                            load_text,
                         )
                     };
                     let diag = ctx.at(st, "time_max", format!(
