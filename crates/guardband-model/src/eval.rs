@@ -96,29 +96,39 @@ pub fn evaluate(
     refs.dedup();
 }
 
-fn unit_help(kind: QuantityKind) -> String {
-    let units = match kind.si_symbol().as_str() {
-        "A" => "A, mA or uA",
-        "V" => "V or mV",
-        "F" => "uF, nF or pF",
-        "s" => "s, ms, us, h or yr",
-        "m" => "um, mm or mil",
-        "°C" => "°C (or K)",
-        "K" => "K",
-        "K/W" => "K/W",
-        "A/m^2" => "mA/um^2 or A/cm^2",
-        "A/m" => "mA/um",
-        "J" => "eV",
-        "Ω·m" => "uohm*cm or ohm*m",
-        "rad" => "deg",
-        "1" => "a plain number, % or ppm",
-        _ => "",
-    };
-    if units.is_empty() {
-        format!("write the value as {}", kind.describe())
-    } else {
-        format!("write the value in {units}")
-    }
+/// The help for a value in the wrong unit: the usual spellings of each
+/// kind the field accepts.
+fn unit_help(kinds: &[QuantityKind]) -> String {
+    let spellings: Vec<String> = kinds
+        .iter()
+        .map(|kind| {
+            let units = match kind.si_symbol().as_str() {
+                "A" => "A, mA or uA",
+                "V" => "V or mV",
+                "F" => "uF, nF or pF",
+                "s" => "s, ms, us, h or yr",
+                "m" => "um, mm or mil",
+                "°C" => "°C (or K)",
+                "K" => "K",
+                "K/W" => "K/W",
+                "A/m^2" => "mA/um^2 or A/cm^2",
+                "A/m" => "mA/um",
+                "J" => "eV",
+                "Ω" => "ohm or kohm",
+                "W" => "W or mW",
+                "Ω·m" => "uohm*cm or ohm*m",
+                "rad" => "deg",
+                "1" => "a plain number, % or ppm",
+                _ => "",
+            };
+            if units.is_empty() {
+                format!("as {}", kind.describe())
+            } else {
+                format!("in {units}")
+            }
+        })
+        .collect();
+    format!("write the value {}", spellings.join("; or "))
 }
 
 impl<'a> Evaluator<'a> {
@@ -416,7 +426,7 @@ impl<'a> Evaluator<'a> {
                 d.help("an absolute temperature is written in °C or K, not as a difference")
             }
         } else {
-            d.help(unit_help(kinds[0]))
+            d.help(unit_help(kinds))
         };
         self.push(d);
         if coulomb {

@@ -6,7 +6,7 @@
 use super::current::Currents;
 use super::envelope;
 use super::load::{Load, LoadKind};
-use super::unknown::{Figure, both, need};
+use super::unknown::{Figure, both, need, optional};
 use crate::physics::thermal;
 use guardband_model::{BlockKind, Model, Node};
 use uom::si::f64 as q;
@@ -109,6 +109,12 @@ pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<He
     (short.ok_or_else(missing), worst.ok_or_else(missing))
 }
 
+/// Whether a spec asks for the heat at rated load: it states a junction
+/// limit or a thermal shutdown to hold that heat against.
+pub fn wants_rated_load_heat(model: &Model, reg: &Node) -> bool {
+    reg.field("junction_max").is_some() || model.child(reg, BlockKind::ThermalShutdown).is_some()
+}
+
 /// Heat in normal operation: the largest `(Vin,max − V)·I_load(V)` over the
 /// regulated output `V` from its low to its high edge, with `I_load` the
 /// load's heaviest draw, plus the quiescent current's `I_q,max·Vin,max`;
@@ -117,9 +123,9 @@ pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<He
 /// For a constant current or power the product falls as `V` rises, so the
 /// low edge of the output is worst; for a resistance `(Vin − V)·V/R` peaks
 /// at `V = Vin/2` when that lies inside the output's range.
-pub fn normal(reg: &Node) -> Figure<Heat> {
+pub fn normal(reg: &Node, load: &Figure<Load>) -> Figure<Heat> {
     let ((inp, load), (output, quiescent)) = both(
-        both(inputs(reg), Load::need(reg, "load")),
+        both(inputs(reg), load.as_ref().map_err(Clone::clone)),
         both(need(reg, "output"), need(reg, "quiescent")),
     )?;
     let vin = inp.supply.1;
@@ -208,7 +214,7 @@ pub fn cycling(model: &Model, reg: &Node, short: &Figure<Heat>) -> Figure<Option
     let Some(tsd) = model.child(reg, BlockKind::ThermalShutdown) else {
         return Ok(None);
     };
-    let Some(hyst) = super::unknown::optional(tsd, "hysteresis")? else {
+    let Some(hyst) = optional(tsd, "hysteresis")? else {
         return Ok(None);
     };
     let trip = need(tsd, "threshold")?;
@@ -223,7 +229,7 @@ pub fn cycling(model: &Model, reg: &Node, short: &Figure<Heat>) -> Figure<Option
     if h <= 0.0 || x_hi <= h || rise <= x_lo.max(h) {
         return Ok(None);
     }
-    let tau = super::unknown::optional(tsd, "time_constant")?.map(|t| t.lo);
+    let tau = optional(tsd, "time_constant")?.map(|t| t.lo);
     let period_min = tau.map(|tau| {
         let x = x_lo.max(h * (1.0 + 1e-12));
         let heating = tau * ((rise - x + h) / (rise - x)).ln();

@@ -103,7 +103,9 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
     let (short, overload) = heat::heat(reg, &currents);
     let fault_temperature = heat::fault_temperature(model, reg, &overload);
     let cycling = heat::cycling(model, reg, &short);
-    let startup = startup::startup(model, reg, &currents);
+    // The regulator's load, read once for every figure that needs it.
+    let reg_load = Load::need(reg, "load");
+    let startup = startup::startup(model, reg, &currents, &reg_load);
     let inputs = conductor::RatingInputs {
         model,
         reg,
@@ -115,13 +117,13 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         .children(reg, BlockKind::Conductor)
         .map(|c| conductor::rate(&inputs, c))
         .collect();
-    let load = Load::read(reg, "load").ok().flatten();
+    let load = reg_load.as_ref().ok().cloned();
     let output = reg.quantity("output");
     let rated_load = load.as_ref().and_then(|l| match l.kind {
         LoadKind::Current => Some(l.hi),
         _ => output.and_then(|o| l.heaviest_over(o.lo, o.hi)),
     });
-    let recovery = recovery(reg, &currents);
+    let recovery = recovery(reg, &currents, &reg_load);
     Derived {
         regulator: reg.id,
         rated_load,
@@ -129,7 +131,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
             .as_ref()
             .and_then(|l| l.current_unit().map(str::to_string)),
         load,
-        normal: heat::normal(reg),
+        normal: heat::normal(reg, &reg_load),
         recovery,
         margin: reg
             .quantity("margin")
@@ -150,10 +152,14 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
 
 /// Where the least delivered current first fails to exceed the load, from
 /// 0 V up to the highest regulated output (see [`Derived::recovery`]).
-fn recovery(reg: &Node, currents: &Figure<Currents>) -> Figure<Option<Shortfall>> {
+fn recovery(
+    reg: &Node,
+    currents: &Figure<Currents>,
+    load: &Figure<Load>,
+) -> Figure<Option<Shortfall>> {
     let c = currents.as_ref().map_err(Clone::clone)?;
     let lower = c.lower.as_ref().map_err(Clone::clone)?;
-    let (load, output) = unknown::both(Load::need(reg, "load"), unknown::need(reg, "output"))?;
+    let (load, output) = unknown::both(load.clone(), unknown::need(reg, "output"))?;
     Ok(load::first_shortfall(lower, &load, output.hi))
 }
 

@@ -60,7 +60,13 @@ pub fn charged_pins<'m>(model: &'m Model, reg: &'m Node) -> impl Iterator<Item =
 }
 
 /// Derives the startup figures of `reg`.
-pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure<Startup> {
+/// `load` is the regulator's load, used when the `startup` block states none.
+pub fn startup(
+    model: &Model,
+    reg: &Node,
+    currents: &Figure<Currents>,
+    load: &Figure<Load>,
+) -> Figure<Startup> {
     let c = currents.as_ref().map_err(Clone::clone)?;
     let mut cap = (0.0, 0.0);
     let mut stated = false;
@@ -80,7 +86,7 @@ pub fn startup(model: &Model, reg: &Node, currents: &Figure<Currents>) -> Figure
     let start = model.child(reg, BlockKind::Startup);
     let load = match start.map(|s| Load::read(s, "load")).transpose()?.flatten() {
         Some(l) => l,
-        None => Load::need(reg, "load")?,
+        None => load.clone()?,
     };
     let slew = match start {
         Some(s) => optional(s, "slew")?,

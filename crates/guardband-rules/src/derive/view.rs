@@ -296,11 +296,7 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
             Err(u) => out.push(not_derived(reg, &format!("{label}: junction"), u)),
         }
     }
-    let reg_node = model.node(d.regulator);
-    let wants_normal_heat = reg_node.field("junction_max").is_some()
-        || model
-            .child(reg_node, guardband_model::BlockKind::ThermalShutdown)
-            .is_some();
+    let wants_normal_heat = super::heat::wants_rated_load_heat(model, model.node(d.regulator));
     match &d.normal {
         Ok(h) => {
             let mut r = row(

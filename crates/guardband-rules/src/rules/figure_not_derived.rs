@@ -61,8 +61,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         if let (Err(u), true) = (&d.overload, wants_heat) {
             figures.push(("heat in a short or overload", u));
         }
-        let wants_normal_heat = reg.field("junction_max").is_some()
-            || ctx.model.child(reg, BlockKind::ThermalShutdown).is_some();
+        let wants_normal_heat = crate::derive::heat::wants_rated_load_heat(ctx.model, reg);
         if let (Err(u), true) = (&d.normal, wants_normal_heat) {
             figures.push(("heat at rated load", u));
         }

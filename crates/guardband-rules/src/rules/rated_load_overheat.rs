@@ -88,13 +88,17 @@ fn finding(
     } else {
         format!("the {lim} limit")
     };
+    let place = if compare::exceeds(heat.junction, bound) {
+        format!("{over} above {what}")
+    } else {
+        format!("at {what}")
+    };
     let mut diag = ctx.at(
         node,
         key,
         format!(
-            "the junction of `{}` reaches {tj} in normal operation at rated load, {over} {} {what}",
+            "the junction of `{}` reaches {tj} in normal operation at rated load, {place}",
             reg.key(),
-            if compare::exceeds(heat.junction, bound) { "above" } else { "at" },
         ),
     );
     let quiescent = reg

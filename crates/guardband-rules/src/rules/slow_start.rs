@@ -64,15 +64,13 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     Some(sh) if s.load_line.kind != LoadKind::Current => (sh.delivered, sh.drawn),
                     _ => (s.charge_min, s.load),
                 };
-                let drawn_text = if drawn.is_finite() {
-                    versus(delivered, drawn, QuantityKind::CURRENT, d.load_unit.as_deref()).1
+                let (i, drawn_text) = if drawn.is_finite() {
+                    versus(delivered, drawn, QuantityKind::CURRENT, d.load_unit.as_deref())
                 } else {
-                    "without bound (a constant power with no `load_cutoff`, as the output nears 0 V)".to_string()
-                };
-                let i = if drawn.is_finite() {
-                    versus(delivered, drawn, QuantityKind::CURRENT, d.load_unit.as_deref()).0
-                } else {
-                    amps(delivered)
+                    (
+                        amps(delivered),
+                        "without bound (a constant power with no `load_cutoff`, as the output nears 0 V)".to_string(),
+                    )
                 };
                 let what = match s.load_line.kind {
                     LoadKind::Current => format!("load at startup {}", amps(s.load)),
