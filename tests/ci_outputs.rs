@@ -36,6 +36,74 @@ fn escape_stray_bracket(v: &mut Value) -> usize {
     }
 }
 
+/// Where `examples/` sits in the repository around it, as CI paths name it:
+/// `examples/` in a git checkout, nothing when the sources are not one (CI
+/// paths then start at the folder guardband ran in).
+fn examples_in_repo() -> String {
+    let examples = root().join("examples");
+    match examples.ancestors().find(|d| d.join(".git").exists()) {
+        Some(top) => format!(
+            "{}/",
+            examples.strip_prefix(top).expect("inside").to_string_lossy()
+        ),
+        None => String::new(),
+    }
+}
+
+/// A repository laid out as the README's CI recipe suggests: the specs and
+/// their `guardband.toml` in `specs/`, the git top level above them.
+fn specs_repository(name: &str, with_git: bool) -> std::path::PathBuf {
+    let repo = temp_dir(name).canonicalize().expect("canonical");
+    std::fs::create_dir_all(repo.join("specs")).expect("specs");
+    if with_git {
+        std::fs::create_dir_all(repo.join(".git")).expect(".git");
+    }
+    std::fs::write(repo.join("specs/guardband.toml"), "").expect("toml");
+    std::fs::write(
+        repo.join("specs/ldo12.guard"),
+        "regulator ldo12 {\n    load = 0 V .. 1 V\n}\n",
+    )
+    .expect("spec");
+    repo
+}
+
+#[test]
+fn ci_paths_are_relative_to_the_repository_root() {
+    let repo = specs_repository("ci-paths-git", true);
+    for cwd in [repo.clone(), repo.join("specs")] {
+        let args: &[&str] = if cwd == repo {
+            &["check", "--format", "github", "specs"]
+        } else {
+            &["check", "--format", "github"]
+        };
+        let run = guardband(&cwd, args);
+        assert_eq!(run.code, 1, "{}", run.stderr);
+        assert!(
+            run.stdout.starts_with("::error file=specs/ldo12.guard,line=2,"),
+            "from {}: {}",
+            cwd.display(),
+            run.stdout
+        );
+        let sarif = sarif_of(&cwd, if cwd == repo { &["specs"] } else { &[] });
+        let location = &sarif["runs"][0]["results"][0]["locations"][0]["physicalLocation"];
+        assert_eq!(location["artifactLocation"]["uri"], "specs/ldo12.guard");
+        assert_eq!(location["artifactLocation"]["uriBaseId"], "REPOROOT");
+        assert!(!sarif.to_string().contains(&*repo.to_string_lossy()));
+    }
+}
+
+#[test]
+fn without_git_ci_paths_start_at_the_working_folder() {
+    let repo = specs_repository("ci-paths-plain", false);
+    if repo.ancestors().skip(1).any(|d| d.join(".git").exists()) {
+        panic!("the temporary folder {} sits inside a repository", repo.display());
+    }
+    let run = guardband(&repo, &["check", "--format", "github", "specs"]);
+    assert!(run.stdout.starts_with("::error file=specs/ldo12.guard,"), "{}", run.stdout);
+    let run = guardband(&repo.join("specs"), &["check", "--format", "github"]);
+    assert!(run.stdout.starts_with("::error file=ldo12.guard,"), "{}", run.stdout);
+}
+
 #[test]
 fn sarif_of_the_examples_validates_against_the_official_schema() {
     let mut schema: Value = serde_json::from_str(
@@ -72,13 +140,9 @@ fn sarif_of_the_examples_validates_against_the_official_schema() {
             .as_str()
             .is_some_and(|u| u.starts_with("https://"))
     );
-    let base = run["originalUriBaseIds"]["WORKSPACE"]["uri"]
-        .as_str()
-        .expect("base");
-    assert!(
-        base.starts_with("file:///") && base.ends_with('/'),
-        "{base}"
-    );
+    // The base is left to the consumer: no path of this machine in the log.
+    assert!(run["originalUriBaseIds"]["REPOROOT"]["description"]["text"].is_string());
+    assert!(!log.to_string().contains("file://"));
     let rules = driver["rules"].as_array().expect("rules");
     for rule in guardband_rules::registry() {
         let r = rules
@@ -111,7 +175,9 @@ fn sarif_of_the_examples_validates_against_the_official_schema() {
     {
         assert_eq!(r["ruleId"], d["rule"]);
         let loc = &r["locations"][0]["physicalLocation"];
-        assert_eq!(loc["artifactLocation"]["uri"], d["file"]);
+        let uri = format!("{}{}", examples_in_repo(), d["file"].as_str().expect("file"));
+        assert_eq!(loc["artifactLocation"]["uri"], uri.as_str());
+        assert_eq!(loc["artifactLocation"]["uriBaseId"], "REPOROOT");
         assert_eq!(loc["region"]["startLine"], d["range"]["start"]["line"]);
         assert_eq!(loc["region"]["startColumn"], d["range"]["start"]["column"]);
         assert_eq!(loc["region"]["endColumn"], d["range"]["end"]["column"]);
@@ -200,7 +266,10 @@ fn github_annotations_carry_positions_and_escape_text() {
         .find(|l| l.contains("tolerance-missing"))
         .expect("the info finding");
     assert!(
-        tolerance.starts_with("::notice file=flawed/aux_rail.guard,line="),
+        tolerance.starts_with(&format!(
+            "::notice file={}flawed/aux_rail.guard,line=",
+            examples_in_repo()
+        )),
         "{tolerance}"
     );
     assert!(

@@ -30,11 +30,13 @@ fn kind(s: Severity) -> &'static str {
 }
 
 /// Writes one annotation per finding, and a note when more findings of a
-/// kind exist than the page shows.
+/// kind exist than the page shows. Files are named relative to `base`
+/// (the repository root, see [`crate::repo::base`]).
 pub fn annotations(
     out: &mut dyn Write,
     ws: &Workspace,
     diagnostics: &[Diagnostic],
+    base: &std::path::Path,
 ) -> std::io::Result<()> {
     for d in diagnostics {
         let file = ws.file(d.file);
@@ -49,7 +51,7 @@ pub fn annotations(
             out,
             "::{} file={},line={},col={},endLine={},endColumn={},title={}::{}",
             kind(d.severity),
-            escape_property(&file.display),
+            escape_property(&crate::repo::annotation_path(base, &file.path)),
             a.line + 1,
             a.chars + 1,
             b.line + 1,

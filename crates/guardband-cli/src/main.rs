@@ -5,6 +5,7 @@ mod collect;
 mod excerpt;
 mod github;
 mod render;
+mod repo;
 mod sarif;
 mod write;
 
@@ -208,11 +209,11 @@ fn check(
             ),
             Format::Json => render::json(out, ws, diagnostics, files_checked),
             Format::Sarif => {
-                let text =
-                    serde_json::to_string_pretty(&sarif::log(ws, diagnostics)).unwrap_or_default();
+                let log = sarif::log(ws, diagnostics, &repo_base());
+                let text = serde_json::to_string_pretty(&log).unwrap_or_default();
                 writeln!(out, "{text}")
             }
-            Format::Github => github::annotations(out, ws, diagnostics),
+            Format::Github => github::annotations(out, ws, diagnostics, &repo_base()),
         }
     };
     if let Err(e) = written
@@ -235,6 +236,13 @@ fn check(
     } else {
         ExitCode::SUCCESS
     }
+}
+
+/// The folder CI output names files relative to: the repository around the
+/// current folder (see [`repo::base`]).
+fn repo_base() -> PathBuf {
+    let cwd = std::env::current_dir().unwrap_or_default();
+    repo::base(&cwd)
 }
 
 /// The workspace root and the `.guard` files under `paths`; on a usage or

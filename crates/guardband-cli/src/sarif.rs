@@ -2,7 +2,11 @@
 //!
 //! One run; the driver lists every lint rule (with its documentation as
 //! help) and every language diagnostic. Locations are relative to the
-//! workspace root through the `WORKSPACE` base id, columns count Unicode
+//! repository root (the git top level, else the folder guardband ran in)
+//! through the `REPOROOT` base id, whose absolute place the log leaves to
+//! the consumer (a code-scanning upload knows its checkout; an absolute
+//! path of the machine that ran the check would mean nothing there).
+//! Columns count Unicode
 //! code points (as the JSON output does), and each result carries a
 //! fingerprint built from what it points at, not where, so it survives
 //! edits above it.
@@ -10,6 +14,7 @@
 use guardband_model::{Diagnostic, LANGUAGE_DIAGNOSTICS, Severity, Workspace};
 use serde_json::{Value, json};
 use std::collections::HashMap;
+use std::path::Path;
 
 /// Where users can read about the tool. The project has no published home
 /// yet; `.invalid` is the reserved top-level domain for such placeholders.
@@ -137,26 +142,45 @@ fn path_bytes(path: &std::path::Path) -> Vec<u8> {
     }
 }
 
-/// A file's URI relative to the workspace root.
-fn relative_uri(ws: &Workspace, file: guardband_model::FileId) -> String {
-    let f = ws.file(file);
-    match f.path.strip_prefix(&ws.root) {
-        Ok(rel) => percent_encode(&path_bytes(rel)),
-        Err(_) => percent_encode(f.display.as_bytes()),
+/// The base id locations are relative to: the repository root.
+const BASE_ID: &str = "REPOROOT";
+
+/// A file's location: relative to the repository root when it lies inside
+/// it, else its absolute `file:` URI.
+fn artifact(base: &Path, path: &Path) -> Value {
+    match crate::repo::relative(base, path) {
+        Some(rel) => json!({ "uri": percent_encode(&path_bytes(&rel)), "uriBaseId": BASE_ID }),
+        None => json!({ "uri": file_uri(path) }),
     }
 }
 
-fn location(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<usize>) -> Value {
+/// An absolute `file:` URI for `path`.
+fn file_uri(path: &Path) -> String {
+    let encoded = percent_encode(&path_bytes(path));
+    if encoded.starts_with('/') {
+        format!("file://{encoded}")
+    } else {
+        format!("file:///{encoded}")
+    }
+}
+
+fn location(
+    ws: &Workspace,
+    base: &Path,
+    file: guardband_model::FileId,
+    span: &std::ops::Range<usize>,
+) -> Value {
     json!({
         "physicalLocation": {
-            "artifactLocation": { "uri": relative_uri(ws, file), "uriBaseId": "WORKSPACE" },
+            "artifactLocation": artifact(base, &ws.file(file).path),
             "region": region(ws, file, span),
         }
     })
 }
 
-/// The SARIF log of one check.
-pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
+/// The SARIF log of one check; `base` is the repository root (see
+/// [`crate::repo::base`]).
+pub fn log(ws: &Workspace, diagnostics: &[Diagnostic], base: &Path) -> Value {
     let rules = rules();
     let index: HashMap<&str, usize> = rules
         .iter()
@@ -178,7 +202,7 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
                 .filter(|l| !(l.file == d.file && l.span == d.span))
                 .enumerate()
                 .map(|(i, l)| {
-                    let mut loc = location(ws, l.file, &l.span);
+                    let mut loc = location(ws, base, l.file, &l.span);
                     loc["id"] = json!(i);
                     loc["message"] = json!({ "text": l.message });
                     loc
@@ -188,7 +212,7 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
                 "ruleId": d.rule,
                 "level": level(Some(d.severity)),
                 "message": { "text": message },
-                "locations": [location(ws, d.file, &d.span)],
+                "locations": [location(ws, base, d.file, &d.span)],
                 "partialFingerprints": { "guardbandFinding/v1": fingerprint(ws, d, &mut seen) },
             });
             if let Some(i) = index.get(d.rule) {
@@ -200,15 +224,6 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
             result
         })
         .collect();
-    let mut root_uri = percent_encode(&path_bytes(&ws.root));
-    if !root_uri.ends_with('/') {
-        root_uri.push('/');
-    }
-    let root_uri = if root_uri.starts_with('/') {
-        format!("file://{root_uri}")
-    } else {
-        format!("file:///{root_uri}")
-    };
     json!({
         "$schema": "https://json.schemastore.org/sarif-2.1.0.json",
         "version": "2.1.0",
@@ -222,7 +237,9 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic]) -> Value {
                     "rules": rules,
                 }
             },
-            "originalUriBaseIds": { "WORKSPACE": { "uri": root_uri } },
+            "originalUriBaseIds": { BASE_ID: {
+                "description": { "text": "The root of the repository the check ran in (its git top level, else the folder guardband ran in)." }
+            } },
             "columnKind": "unicodeCodePoints",
             "results": results,
         }]
