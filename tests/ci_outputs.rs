@@ -44,7 +44,10 @@ fn examples_in_repo() -> String {
     match examples.ancestors().find(|d| d.join(".git").exists()) {
         Some(top) => format!(
             "{}/",
-            examples.strip_prefix(top).expect("inside").to_string_lossy()
+            examples
+                .strip_prefix(top)
+                .expect("inside")
+                .to_string_lossy()
         ),
         None => String::new(),
     }
@@ -79,7 +82,8 @@ fn ci_paths_are_relative_to_the_repository_root() {
         let run = guardband(&cwd, args);
         assert_eq!(run.code, 1, "{}", run.stderr);
         assert!(
-            run.stdout.starts_with("::error file=specs/ldo12.guard,line=2,"),
+            run.stdout
+                .starts_with("::error file=specs/ldo12.guard,line=2,"),
             "from {}: {}",
             cwd.display(),
             run.stdout
@@ -96,12 +100,23 @@ fn ci_paths_are_relative_to_the_repository_root() {
 fn without_git_ci_paths_start_at_the_working_folder() {
     let repo = specs_repository("ci-paths-plain", false);
     if repo.ancestors().skip(1).any(|d| d.join(".git").exists()) {
-        panic!("the temporary folder {} sits inside a repository", repo.display());
+        panic!(
+            "the temporary folder {} sits inside a repository",
+            repo.display()
+        );
     }
     let run = guardband(&repo, &["check", "--format", "github", "specs"]);
-    assert!(run.stdout.starts_with("::error file=specs/ldo12.guard,"), "{}", run.stdout);
+    assert!(
+        run.stdout.starts_with("::error file=specs/ldo12.guard,"),
+        "{}",
+        run.stdout
+    );
     let run = guardband(&repo.join("specs"), &["check", "--format", "github"]);
-    assert!(run.stdout.starts_with("::error file=ldo12.guard,"), "{}", run.stdout);
+    assert!(
+        run.stdout.starts_with("::error file=ldo12.guard,"),
+        "{}",
+        run.stdout
+    );
 }
 
 #[test]
@@ -175,7 +190,11 @@ fn sarif_of_the_examples_validates_against_the_official_schema() {
     {
         assert_eq!(r["ruleId"], d["rule"]);
         let loc = &r["locations"][0]["physicalLocation"];
-        let uri = format!("{}{}", examples_in_repo(), d["file"].as_str().expect("file"));
+        let uri = format!(
+            "{}{}",
+            examples_in_repo(),
+            d["file"].as_str().expect("file")
+        );
         assert_eq!(loc["artifactLocation"]["uri"], uri.as_str());
         assert_eq!(loc["artifactLocation"]["uriBaseId"], "REPOROOT");
         assert_eq!(loc["region"]["startLine"], d["range"]["start"]["line"]);

@@ -436,3 +436,32 @@ fn explain_lists_and_documents_every_rule() {
     assert_eq!(unknown.code, 2);
     assert!(unknown.stderr.contains("limit-within-load"));
 }
+
+#[test]
+fn version_names_the_git_revision_it_was_built_from() {
+    let run = guardband(&root(), &["--version"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let line = run.stdout.trim();
+    let expected_start = concat!("guardband ", env!("CARGO_PKG_VERSION"), " (");
+    let revision = line
+        .strip_prefix(expected_start)
+        .and_then(|r| r.strip_suffix(')'))
+        .unwrap_or_else(|| panic!("{line}"));
+    // Compared with git itself when this is a git checkout and git is here
+    // (the build script reads the repository's files instead of running it).
+    let git = std::process::Command::new("git")
+        .args(["rev-parse", "HEAD"])
+        .current_dir(root())
+        .output();
+    match git {
+        Ok(out) if out.status.success() => {
+            let head = String::from_utf8_lossy(&out.stdout);
+            assert_eq!(revision, &head.trim()[..12], "{line}");
+        }
+        _ => assert!(
+            revision == "revision unknown"
+                || (revision.len() == 12 && revision.chars().all(|c| c.is_ascii_hexdigit())),
+            "{line}"
+        ),
+    }
+}

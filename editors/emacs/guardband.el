@@ -2,7 +2,7 @@
 
 ;; A small major mode for `.guard' files and the eglot setup for the
 ;; guardband language server (`guardband lsp').  Needs Emacs 29 (eglot
-;; built in) or eglot from GNU ELPA.
+;; built in), or Emacs 28 with eglot from GNU ELPA (Debian: elpa-eglot).
 
 ;;; Code:
 

@@ -18,9 +18,18 @@ static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+/// The version `--version` prints: the package version and the git
+/// revision the binary was built from (recorded by `build.rs`).
+const VERSION: &str = concat!(
+    env!("CARGO_PKG_VERSION"),
+    " (",
+    env!("GUARDBAND_REVISION"),
+    ")"
+);
+
 /// Checks the protection requirements of regulator blocks written as `.guard` specs.
 #[derive(Parser)]
-#[command(name = "guardband", version, about)]
+#[command(name = "guardband", version = VERSION, about)]
 struct Cli {
     #[command(subcommand)]
     command: Command,

@@ -34,7 +34,8 @@ mod tests {
 
     /// A fresh temporary folder with `specs/deep` inside, canonical.
     fn temp(name: &str) -> PathBuf {
-        let dir = std::env::temp_dir().join(format!("guardband-repo-{name}-{}", std::process::id()));
+        let dir =
+            std::env::temp_dir().join(format!("guardband-repo-{name}-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&dir);
         std::fs::create_dir_all(dir.join("specs/deep")).expect("temp dir");
         dir.canonicalize().expect("canonical")
@@ -73,7 +74,10 @@ mod tests {
     #[test]
     fn outside_the_base_the_path_stays_absolute() {
         let base = Path::new("/a/b");
-        assert_eq!(annotation_path(base, Path::new("/a/b/c/x.guard")), "c/x.guard");
+        assert_eq!(
+            annotation_path(base, Path::new("/a/b/c/x.guard")),
+            "c/x.guard"
+        );
         assert_eq!(annotation_path(base, Path::new("/z/x.guard")), "/z/x.guard");
     }
 }
