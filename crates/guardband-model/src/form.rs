@@ -144,20 +144,185 @@ impl Form {
     }
 }
 
-/// A small deterministic generator (SplitMix64), so that the monotonicity
-/// probe gives the same answer on every run and machine.
-struct Probe(u64);
-
-impl Probe {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^= z >> 31;
-        // In -1 ..= 1.
-        (z >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+/// A product of factors: a constant, and each factor (compared as a form)
+/// with its power.
+fn factors(form: &Arc<Form>, power: i32, constant: &mut f64, out: &mut Vec<(Arc<Form>, i32)>) {
+    match &**form {
+        Form::Const(c) if power == 1 => *constant *= c,
+        Form::Const(c) if power == -1 && *c != 0.0 => *constant /= c,
+        Form::Mul(a, b) => {
+            factors(a, power, constant, out);
+            factors(b, power, constant, out);
+        }
+        Form::Div(a, b) => {
+            factors(a, power, constant, out);
+            factors(b, -power, constant, out);
+        }
+        _ => match out.iter_mut().find(|(f, _)| **f == **form) {
+            Some((_, p)) => *p += power,
+            None => out.push((Arc::clone(form), power)),
+        },
     }
+}
+
+/// `form` with equal factors of each product or quotient cancelled, the
+/// parts below rewritten the same way; the same function wherever `form`
+/// is defined.
+fn cancel(form: &Form) -> Arc<Form> {
+    let two = |a: &Arc<Form>, b: &Arc<Form>| (cancel(a), cancel(b));
+    Arc::new(match form {
+        Form::Mul(..) | Form::Div(..) => {
+            let (mut constant, mut list) = (1.0, Vec::new());
+            let whole = Arc::new(form.clone());
+            factors(&whole, 1, &mut constant, &mut list);
+            let mut out = Arc::new(Form::Const(constant));
+            for (factor, power) in list {
+                let factor = cancel(&factor);
+                for _ in 0..power.unsigned_abs() {
+                    out = Arc::new(if power > 0 {
+                        Form::Mul(out, Arc::clone(&factor))
+                    } else {
+                        Form::Div(out, Arc::clone(&factor))
+                    });
+                }
+            }
+            return out;
+        }
+        Form::Add(a, b) => {
+            let (a, b) = two(a, b);
+            Form::Add(a, b)
+        }
+        Form::Sub(a, b) => {
+            let (a, b) = two(a, b);
+            Form::Sub(a, b)
+        }
+        Form::Min(a, b) => {
+            let (a, b) = two(a, b);
+            Form::Min(a, b)
+        }
+        Form::Max(a, b) => {
+            let (a, b) = two(a, b);
+            Form::Max(a, b)
+        }
+        Form::Neg(a) => Form::Neg(cancel(a)),
+        Form::Abs(a) => Form::Abs(cancel(a)),
+        Form::Sqrt(a) => Form::Sqrt(cancel(a)),
+        Form::Const(_) | Form::Param { .. } => form.clone(),
+    })
+}
+
+/// A closed interval `(lo, hi)`.
+type Iv = (f64, f64);
+
+fn iv_add(a: Iv, b: Iv) -> Iv {
+    (a.0 + b.0, a.1 + b.1)
+}
+
+fn iv_neg(a: Iv) -> Iv {
+    (-a.1, -a.0)
+}
+
+fn iv_mul(a: Iv, b: Iv) -> Iv {
+    let p = [a.0 * b.0, a.0 * b.1, a.1 * b.0, a.1 * b.1];
+    (
+        p.iter().copied().fold(f64::INFINITY, f64::min),
+        p.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+    )
+}
+
+fn iv_hull(a: Iv, b: Iv) -> Iv {
+    (a.0.min(b.0), a.1.max(b.1))
+}
+
+/// The value of `form` and its derivative along tolerance `wrt` (per unit
+/// of `u`), each enclosed over the whole box `u ∈ [-1, 1]` by interval
+/// arithmetic (forward-mode differentiation on intervals). `None` where an
+/// enclosure is not finite (a divisor or a square root that can reach zero).
+fn slope(form: &Form, wrt: SourceId) -> Option<(Iv, Iv)> {
+    let finite = |(v, d): (Iv, Iv)| {
+        [v.0, v.1, d.0, d.1]
+            .iter()
+            .all(|x| x.is_finite())
+            .then_some((v, d))
+    };
+    let out = match form {
+        Form::Const(c) => ((*c, *c), (0.0, 0.0)),
+        Form::Param { source, lo, hi } => {
+            let half = (hi - lo) / 2.0;
+            let d = if *source == wrt { half } else { 0.0 };
+            ((lo.min(*hi), lo.max(*hi)), (d, d))
+        }
+        Form::Add(a, b) => {
+            let ((va, da), (vb, db)) = (slope(a, wrt)?, slope(b, wrt)?);
+            (iv_add(va, vb), iv_add(da, db))
+        }
+        Form::Sub(a, b) => {
+            let ((va, da), (vb, db)) = (slope(a, wrt)?, slope(b, wrt)?);
+            (iv_add(va, iv_neg(vb)), iv_add(da, iv_neg(db)))
+        }
+        Form::Mul(a, b) => {
+            let ((va, da), (vb, db)) = (slope(a, wrt)?, slope(b, wrt)?);
+            (iv_mul(va, vb), iv_add(iv_mul(da, vb), iv_mul(va, db)))
+        }
+        Form::Div(a, b) => {
+            let ((va, da), (vb, db)) = (slope(a, wrt)?, slope(b, wrt)?);
+            if vb.0 <= 0.0 && vb.1 >= 0.0 {
+                return None;
+            }
+            let inv = (1.0 / vb.1, 1.0 / vb.0);
+            let inv2 = iv_mul(inv, inv);
+            // (a / b)' = (a' b − a b') / b²
+            let num = iv_add(iv_mul(da, vb), iv_neg(iv_mul(va, db)));
+            (iv_mul(va, inv), iv_mul(num, inv2))
+        }
+        Form::Neg(a) => {
+            let (v, d) = slope(a, wrt)?;
+            (iv_neg(v), iv_neg(d))
+        }
+        Form::Min(a, b) | Form::Max(a, b) => {
+            let ((va, da), (vb, db)) = (slope(a, wrt)?, slope(b, wrt)?);
+            let min = matches!(form, Form::Min(..));
+            // Where one side always wins, its slope; else either side's.
+            let (first_wins, second_wins) = if min {
+                (va.1 <= vb.0, vb.1 <= va.0)
+            } else {
+                (va.0 >= vb.1, vb.0 >= va.1)
+            };
+            let v = if min {
+                (va.0.min(vb.0), va.1.min(vb.1))
+            } else {
+                (va.0.max(vb.0), va.1.max(vb.1))
+            };
+            let d = if first_wins {
+                da
+            } else if second_wins {
+                db
+            } else {
+                iv_hull(da, db)
+            };
+            (v, d)
+        }
+        Form::Abs(a) => {
+            let (v, d) = slope(a, wrt)?;
+            if v.0 >= 0.0 {
+                (v, d)
+            } else if v.1 <= 0.0 {
+                (iv_neg(v), iv_neg(d))
+            } else {
+                ((0.0, v.1.max(-v.0)), iv_hull(d, iv_neg(d)))
+            }
+        }
+        Form::Sqrt(a) => {
+            let (v, d) = slope(a, wrt)?;
+            if v.0 <= 0.0 {
+                return None;
+            }
+            let root = (v.0.sqrt(), v.1.sqrt());
+            let k = (0.5 / root.1, 0.5 / root.0);
+            (root, iv_mul(d, k))
+        }
+    };
+    finite(out)
 }
 
 /// Why corner evaluation was not used, or how many corners it took.
@@ -167,51 +332,33 @@ pub enum Corners {
     Exact(usize),
     /// More tolerances than [`MAX_CORNER_SOURCES`], or a form too large.
     TooMany,
-    /// Sampling found the value not monotonic in some tolerance, so its
-    /// extremes may lie inside the box: interval bounds are kept.
+    /// Monotonicity in some tolerance could not be proved (the enclosure of
+    /// its derivative over the box spans zero), so the extremes may lie
+    /// inside the box: interval bounds are kept.
     NotMonotonic,
 }
 
 /// The smallest and largest value of `form` over the corners of its
-/// tolerances, when sampling finds it monotonic in each (then the corners
-/// hold its extremes).
+/// tolerances, when it is proved monotonic in each over the whole box (then
+/// the corners hold its extremes).
 pub fn corner_bounds(form: &Form, sources: &[SourceId]) -> Result<(f64, f64), Corners> {
     let n = sources.len();
     if n > MAX_CORNER_SOURCES {
         return Err(Corners::TooMany);
     }
+    // Equal factors above and below a fraction cancel first (`a·s / (b·s)`
+    // is `a / b` wherever the divisor is not zero, which evaluation already
+    // requires): interval arithmetic cannot see that they move together.
+    let simplified = cancel(form);
+    let form = &*simplified;
     let index = |s: SourceId| sources.iter().position(|x| *x == s);
-    // Monotonicity probe: along each tolerance, from three random points of
-    // the box, five steps from -1 to +1 must not change direction.
-    let mut probe = Probe(0x5EED_0FC0_FFEE);
-    for i in 0..n {
-        for _ in 0..3 {
-            let base: Vec<f64> = (0..n).map(|_| probe.next()).collect();
-            let mut last: Option<f64> = None;
-            let (mut up, mut down) = (false, false);
-            for step in 0..5 {
-                let t = -1.0 + 0.5 * step as f64;
-                let y = form.eval(&|s| match index(s) {
-                    Some(j) if j == i => t,
-                    Some(j) => base[j],
-                    None => 0.0,
-                });
-                if !y.is_finite() {
-                    return Err(Corners::NotMonotonic);
-                }
-                if let Some(prev) = last {
-                    let slack = 1e-12 * (1.0 + prev.abs().max(y.abs()));
-                    if y > prev + slack {
-                        up = true;
-                    } else if y < prev - slack {
-                        down = true;
-                    }
-                }
-                last = Some(y);
-            }
-            if up && down {
-                return Err(Corners::NotMonotonic);
-            }
+    // Monotonicity proof: the derivative along each tolerance, enclosed by
+    // interval arithmetic over the whole box, must keep one sign. Then the
+    // extremes lie at corners; otherwise they may lie inside the box.
+    for &source in sources {
+        match slope(form, source) {
+            Some((_, d)) if d.0 >= 0.0 || d.1 <= 0.0 => {}
+            _ => return Err(Corners::NotMonotonic),
         }
     }
     let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
@@ -240,6 +387,29 @@ mod tests {
             lo,
             hi,
         })
+    }
+
+    #[test]
+    fn an_extreme_inside_the_box_keeps_the_interval_bounds() {
+        // 2a/b + b has its least value where b = sqrt(2a), inside the box
+        // for these ranges (found by the property test): the corners would
+        // miss it, so monotonicity must be proved, not sampled.
+        let a = p(0, 1.750_710_035_571_302_6, 2.815_970_523_6);
+        let b = p(1, 1.354_985_728_847_007, 2.016_905_4);
+        let two_a = Arc::new(Form::Add(Arc::clone(&a), Arc::clone(&a)));
+        let f = Form::Add(Arc::new(Form::Div(two_a, Arc::clone(&b))), b);
+        let sources = [SourceId(0), SourceId(1)];
+        assert_eq!(corner_bounds(&f, &sources), Err(Corners::NotMonotonic));
+    }
+
+    #[test]
+    fn equal_factors_cancel_before_the_proof() {
+        // (1 + s) / (2 · (1 + s)) is 0.5 everywhere the divisor is not zero.
+        let one_plus = Arc::new(Form::Add(Arc::new(Form::Const(1.0)), p(0, -0.1, 0.1)));
+        let below = Arc::new(Form::Mul(Arc::new(Form::Const(2.0)), Arc::clone(&one_plus)));
+        let f = Form::Div(one_plus, below);
+        let (lo, hi) = corner_bounds(&f, &[SourceId(0)]).expect("proved");
+        assert!((lo - 0.5).abs() < 1e-15 && (hi - 0.5).abs() < 1e-15);
     }
 
     #[test]

@@ -107,7 +107,7 @@ impl Bounds {
                     .into()
             }
             Bounds::Fallback(_) => {
-                "interval arithmetic (a safe overestimate: the value is not monotonic in a tolerance)"
+                "interval arithmetic (a safe overestimate: monotonicity in every tolerance could not be proved)"
                     .into()
             }
         }
