@@ -48,6 +48,15 @@ enum Format {
     Github,
 }
 
+/// Output formats of `diff`.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum DiffFormat {
+    /// A Markdown comment for a pull request.
+    Markdown,
+    /// One JSON object (schema in the README).
+    Json,
+}
+
 /// Output formats of `explain --list`.
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum ListFormat {
@@ -99,6 +108,21 @@ enum Command {
         /// The folder to write into (created if needed).
         #[arg(long, value_name = "DIR")]
         out: PathBuf,
+    },
+    /// Compare the derived figures, findings and waivers of two revisions
+    /// of a workspace (two folders, e.g. a `git worktree` of the base
+    /// branch and the work tree) and print what moved.
+    Diff {
+        /// The earlier revision: a folder or a file.
+        before: PathBuf,
+        /// The later revision: a folder or a file.
+        after: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "markdown")]
+        format: DiffFormat,
+        /// Write the output to this file instead of standard output.
+        #[arg(long, value_name = "FILE")]
+        output: Option<PathBuf>,
     },
     /// Run the language server on standard input and output.
     Lsp,
@@ -153,6 +177,12 @@ fn run() -> ExitCode {
         Command::Explain { rule, list, format } => explain(rule, list, format),
         Command::Fmt { paths, check } => fmt(paths, check),
         Command::Report { paths, out } => report(paths, &out),
+        Command::Diff {
+            before,
+            after,
+            format,
+            output,
+        } => diff(&before, &after, format, output),
         Command::Lsp => match guardband_lsp::run_stdio() {
             Ok(()) => ExitCode::SUCCESS,
             Err(code) => ExitCode::from(code),
@@ -316,6 +346,47 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
             ExitCode::from(2)
         }
     }
+}
+
+fn diff(
+    before: &std::path::Path,
+    after: &std::path::Path,
+    format: DiffFormat,
+    output: Option<PathBuf>,
+) -> ExitCode {
+    use guardband_report::diff;
+    let mut snapshots = Vec::new();
+    for side in [before, after] {
+        if !side.exists() {
+            eprintln!("guardband: {} does not exist", side.display());
+            return ExitCode::from(2);
+        }
+        match load_checked(vec![side.to_path_buf()]) {
+            Ok(c) => snapshots.push(diff::snapshot(&c)),
+            Err(code) => return code,
+        }
+    }
+    let d = diff::diff(&snapshots[0], &snapshots[1]);
+    let (b, a) = (before.display().to_string(), after.display().to_string());
+    let text = match format {
+        DiffFormat::Markdown => diff::markdown(&d, &b, &a),
+        DiffFormat::Json => {
+            serde_json::to_string_pretty(&diff::json(&d, &b, &a)).unwrap_or_default() + "\n"
+        }
+    };
+    match output {
+        Some(path) => {
+            if let Err(e) = std::fs::write(&path, text) {
+                eprintln!("guardband: cannot write {}: {e}", path.display());
+                return ExitCode::from(2);
+            }
+        }
+        None => {
+            use std::io::Write;
+            let _ = std::io::stdout().lock().write_all(text.as_bytes());
+        }
+    }
+    ExitCode::SUCCESS
 }
 
 fn fmt(paths: Vec<PathBuf>, check_only: bool) -> ExitCode {

@@ -8,6 +8,7 @@
 
 pub mod chart;
 pub mod coverage;
+pub mod diff;
 pub mod figures;
 
 use guardband_check::Checked;

@@ -1,0 +1,150 @@
+//! `guardband diff`: two revisions of the example workspace, one with a
+//! changed mirror ratio, a tolerance added, a quiescent current dropped and
+//! a waiver reworded; the diff lists exactly what moved.
+
+mod common;
+
+use common::{guardband, root, temp_dir};
+use serde_json::Value;
+use std::path::Path;
+
+fn copy_tree(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("mkdir");
+    for entry in std::fs::read_dir(from).expect("read dir").flatten() {
+        let path = entry.path();
+        let target = to.join(entry.file_name());
+        if path.is_dir() {
+            copy_tree(&path, &target);
+        } else {
+            std::fs::copy(&path, &target).expect("copy");
+        }
+    }
+}
+
+fn edit(file: &Path, from: &str, to: &str) {
+    let text = std::fs::read_to_string(file).expect("read");
+    assert!(text.contains(from), "{} holds {from:?}", file.display());
+    std::fs::write(file, text.replacen(from, to, 1)).expect("write");
+}
+
+/// A folder holding the examples twice: `before` as they are, `after`
+/// with four edits.
+fn two_revisions(name: &str) -> std::path::PathBuf {
+    let dir = temp_dir(name);
+    let (before, after) = (dir.join("before"), dir.join("after"));
+    copy_tree(&root().join("examples"), &before);
+    copy_tree(&root().join("examples"), &after);
+    let aux = after.join("flawed/aux_rail.guard");
+    edit(&aux, "ratio       = 4000", "ratio       = 5000");
+    edit(&aux, "output       = 3.3 V ", "output       = 3.3 V ± 2 %");
+    edit(&aux, "    quiescent    = 80 uA .. 150 uA\n", "");
+    edit(
+        &after.join("flawed/lamp_rail.guard"),
+        "board-level figure from the module maker's thermal report",
+        "board-level figure, re-measured on the second build",
+    );
+    dir
+}
+
+#[test]
+fn the_markdown_comment_lists_what_moved() {
+    let dir = two_revisions("diff-markdown");
+    let run = guardband(&dir, &["diff", "before", "after"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let md = &run.stdout;
+    assert!(
+        md.starts_with("## guardband: derived figures, before → after\n"),
+        "{md}"
+    );
+    // The limit current is ratio × reference: 5000 / 4000 = 1.25, so each
+    // edge of the window moves by +25 % (arithmetic; the low edge reads
+    // +25.4 % because the change is computed from the digits shown,
+    // (148 − 118) / 118).
+    assert!(
+        md.contains("| `sensed` limit window, worst case | 118 mA .. 208 mA | 148 mA .. 260 mA | 118 mA → 148 mA (+25.4 %); 208 mA → 260 mA (+25 %) |"),
+        "{md}"
+    );
+    // Temperatures move in kelvin.
+    assert!(
+        md.contains("| die temperature in a fault | 130 °C | 145 °C | 130 °C → 145 °C (+15 K) |"),
+        "{md}"
+    );
+    // Without a quiescent current the heat at rated load is no longer derived.
+    assert!(
+        md.contains("### New findings\n\n- **info** `figure-not-derived` in flawed/aux_rail.guard"),
+        "{md}"
+    );
+    assert!(md.contains("### Resolved findings\n\n- **info** `tolerance-missing` in flawed/aux_rail.guard at line 8"), "{md}");
+    assert!(md.contains("### Reworded findings"), "{md}");
+    assert!(
+        md.contains("### Waivers changed\n\n- flawed/lamp_rail.guard at line 13: waives `tolerance-missing`: board-level figure, re-measured on the second build\n  (was: board-level figure from the module maker's thermal report)"),
+        "{md}"
+    );
+    // Regulators that did not move are not listed.
+    assert!(!md.contains("radio_rail"), "{md}");
+    assert!(md.contains("does not replace sign-off"));
+}
+
+#[test]
+fn the_json_diff_carries_values_and_changes() {
+    let dir = two_revisions("diff-json");
+    let out = dir.join("diff.json");
+    let run = guardband(
+        &dir,
+        &[
+            "diff",
+            "before",
+            "after",
+            "--format",
+            "json",
+            "--output",
+            out.to_str().expect("utf-8"),
+        ],
+    );
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    assert!(run.stdout.is_empty());
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(&out).expect("written")).expect("json");
+    assert_eq!(v["version"], 1);
+    let regs = v["regulators"].as_array().expect("regulators");
+    assert_eq!(regs.len(), 1, "{v:#}");
+    assert_eq!(regs[0]["name"], "aux_rail");
+    assert_eq!(regs[0]["status"], "changed");
+    let window = regs[0]["figures"]
+        .as_array()
+        .expect("figures")
+        .iter()
+        .find(|f| f["figure"] == "`sensed` limit window, worst case")
+        .expect("the window moved");
+    let top = &window["moved"][1];
+    assert_eq!(top["before"]["text"], "208 mA");
+    assert!((top["before"]["value"].as_f64().expect("number") - 0.208).abs() < 1e-12);
+    assert!((top["after"]["value"].as_f64().expect("number") - 0.260).abs() < 1e-12);
+    assert_eq!(top["after"]["unit"], "A");
+    assert_eq!(top["change"], "+25 %");
+    assert_eq!(v["findings"]["new"].as_array().map(Vec::len), Some(1));
+    assert_eq!(v["findings"]["resolved"].as_array().map(Vec::len), Some(1));
+    assert_eq!(v["waivers"]["changed"].as_array().map(Vec::len), Some(1));
+    assert_eq!(v["waivers"]["added"].as_array().map(Vec::len), Some(0));
+}
+
+#[test]
+fn the_same_revision_twice_moves_nothing_and_a_missing_one_is_an_error() {
+    let examples = root().join("examples");
+    let run = guardband(&root(), &["diff", "examples", "examples"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    assert!(
+        run.stdout
+            .contains("No derived figure, finding or waiver changed."),
+        "{}",
+        run.stdout
+    );
+    let run = guardband(&root(), &["diff", "examples", "no-such-folder"]);
+    assert_eq!(run.code, 2);
+    assert!(
+        run.stderr.contains("no-such-folder does not exist"),
+        "{}",
+        run.stderr
+    );
+    assert!(examples.is_dir());
+}
