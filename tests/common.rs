@@ -67,3 +67,18 @@ pub fn temp_dir(name: &str) -> PathBuf {
     std::fs::create_dir_all(&dir).expect("temp dir");
     dir
 }
+
+/// Whether the editor `program` can be run. Under CI (`CI` set) a missing
+/// one fails the test, naming the Debian `packages` `.ci/run` installs;
+/// elsewhere the test is skipped, and says so on standard error.
+pub fn editor_present(program: &str, packages: &str) -> bool {
+    if Command::new(program).arg("--version").output().is_ok() {
+        return true;
+    }
+    assert!(
+        std::env::var_os("CI").is_none(),
+        "CI must install {packages} (see .ci/run)"
+    );
+    eprintln!("skipped: {program} is not installed; the test did not run");
+    false
+}

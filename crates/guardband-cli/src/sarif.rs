@@ -80,19 +80,12 @@ fn collapse(text: &str) -> String {
 /// whitespace collapsed), and which occurrence of that combination it is.
 fn fingerprint(ws: &Workspace, d: &Diagnostic, seen: &mut HashMap<u64, u32>) -> String {
     let file = ws.file(d.file);
-    let text = &file.text;
-    let start = d.span.start.min(text.len());
-    let line_start = text[..start].rfind('\n').map(|i| i + 1).unwrap_or(0);
-    let line_end = text[start..]
-        .find('\n')
-        .map(|i| start + i)
-        .unwrap_or(text.len());
-    let spanned = text.get(d.span.clone()).unwrap_or("");
+    let spanned = file.text.get(d.span.clone()).unwrap_or("");
     let key = format!(
         "{}\0{}\0{}\0{}",
         d.rule,
         file.display,
-        collapse(&text[line_start..line_end]),
+        collapse(file.line_text(d.span.start)),
         collapse(spanned)
     );
     let base = fnv1a(key.as_bytes());

@@ -100,47 +100,36 @@ impl Form {
         (nodes <= MAX_FORM_NODES).then_some((seen, repeated))
     }
 
+    /// The same node with each child replaced by `f(child)`; a leaf as it is.
+    fn with_children(&self, f: &dyn Fn(&Arc<Form>) -> Arc<Form>) -> Form {
+        match self {
+            Form::Const(_) | Form::Param { .. } => self.clone(),
+            Form::Add(a, b) => Form::Add(f(a), f(b)),
+            Form::Sub(a, b) => Form::Sub(f(a), f(b)),
+            Form::Mul(a, b) => Form::Mul(f(a), f(b)),
+            Form::Div(a, b) => Form::Div(f(a), f(b)),
+            Form::Min(a, b) => Form::Min(f(a), f(b)),
+            Form::Max(a, b) => Form::Max(f(a), f(b)),
+            Form::Neg(a) => Form::Neg(f(a)),
+            Form::Abs(a) => Form::Abs(f(a)),
+            Form::Sqrt(a) => Form::Sqrt(f(a)),
+        }
+    }
+
     /// The same form with each tolerance renamed by `map` (unmapped ones kept).
     pub fn renamed(self: &Arc<Form>, map: &dyn Fn(SourceId) -> Option<SourceId>) -> Arc<Form> {
-        let two = |a: &Arc<Form>, b: &Arc<Form>| (a.renamed(map), b.renamed(map));
-        Arc::new(match &**self {
-            Form::Const(_) => return Arc::clone(self),
+        match &**self {
+            Form::Const(_) => Arc::clone(self),
             Form::Param { source, lo, hi } => match map(*source) {
-                Some(s) => Form::Param {
+                Some(s) => Arc::new(Form::Param {
                     source: s,
                     lo: *lo,
                     hi: *hi,
-                },
-                None => return Arc::clone(self),
+                }),
+                None => Arc::clone(self),
             },
-            Form::Add(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Add(a, b)
-            }
-            Form::Sub(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Sub(a, b)
-            }
-            Form::Mul(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Mul(a, b)
-            }
-            Form::Div(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Div(a, b)
-            }
-            Form::Min(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Min(a, b)
-            }
-            Form::Max(a, b) => {
-                let (a, b) = two(a, b);
-                Form::Max(a, b)
-            }
-            Form::Neg(a) => Form::Neg(a.renamed(map)),
-            Form::Abs(a) => Form::Abs(a.renamed(map)),
-            Form::Sqrt(a) => Form::Sqrt(a.renamed(map)),
-        })
+            other => Arc::new(other.with_children(&|c| c.renamed(map))),
+        }
     }
 }
 
@@ -169,46 +158,23 @@ fn factors(form: &Arc<Form>, power: i32, constant: &mut f64, out: &mut Vec<(Arc<
 /// parts below rewritten the same way; the same function wherever `form`
 /// is defined.
 fn cancel(form: &Form) -> Arc<Form> {
-    let two = |a: &Arc<Form>, b: &Arc<Form>| (cancel(a), cancel(b));
-    Arc::new(match form {
-        Form::Mul(..) | Form::Div(..) => {
-            let (mut constant, mut list) = (1.0, Vec::new());
-            let whole = Arc::new(form.clone());
-            factors(&whole, 1, &mut constant, &mut list);
-            let mut out = Arc::new(Form::Const(constant));
-            for (factor, power) in list {
-                let factor = cancel(&factor);
-                for _ in 0..power.unsigned_abs() {
-                    out = Arc::new(if power > 0 {
-                        Form::Mul(out, Arc::clone(&factor))
-                    } else {
-                        Form::Div(out, Arc::clone(&factor))
-                    });
-                }
-            }
-            return out;
+    if !matches!(form, Form::Mul(..) | Form::Div(..)) {
+        return Arc::new(form.with_children(&|c| cancel(c)));
+    }
+    let (mut constant, mut list) = (1.0, Vec::new());
+    factors(&Arc::new(form.clone()), 1, &mut constant, &mut list);
+    let mut out = Arc::new(Form::Const(constant));
+    for (factor, power) in list {
+        let factor = cancel(&factor);
+        for _ in 0..power.unsigned_abs() {
+            out = Arc::new(if power > 0 {
+                Form::Mul(out, Arc::clone(&factor))
+            } else {
+                Form::Div(out, Arc::clone(&factor))
+            });
         }
-        Form::Add(a, b) => {
-            let (a, b) = two(a, b);
-            Form::Add(a, b)
-        }
-        Form::Sub(a, b) => {
-            let (a, b) = two(a, b);
-            Form::Sub(a, b)
-        }
-        Form::Min(a, b) => {
-            let (a, b) = two(a, b);
-            Form::Min(a, b)
-        }
-        Form::Max(a, b) => {
-            let (a, b) = two(a, b);
-            Form::Max(a, b)
-        }
-        Form::Neg(a) => Form::Neg(cancel(a)),
-        Form::Abs(a) => Form::Abs(cancel(a)),
-        Form::Sqrt(a) => Form::Sqrt(cancel(a)),
-        Form::Const(_) | Form::Param { .. } => form.clone(),
-    })
+    }
+    out
 }
 
 /// A closed interval `(lo, hi)`.

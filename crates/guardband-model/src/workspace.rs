@@ -22,6 +22,25 @@ pub struct SourceFile {
     pub imports: Vec<(FileId, guardband_syntax::Span)>,
 }
 
+impl SourceFile {
+    /// The text of the line holding byte `offset` (clamped to the text),
+    /// without its line break: what identifies a finding across edits
+    /// that move it to another line.
+    pub fn line_text(&self, offset: usize) -> &str {
+        let text = &self.text;
+        let mut start = offset.min(text.len());
+        while !text.is_char_boundary(start) {
+            start -= 1;
+        }
+        let line_start = text[..start].rfind('\n').map(|i| i + 1).unwrap_or(0);
+        let line_end = text[start..]
+            .find('\n')
+            .map(|i| start + i)
+            .unwrap_or(text.len());
+        text[line_start..line_end].trim_end_matches('\r')
+    }
+}
+
 /// All files of one check, rooted at the workspace root.
 #[derive(Debug, Clone, Default)]
 pub struct Workspace {

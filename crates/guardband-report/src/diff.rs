@@ -81,20 +81,13 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
         .map(|d| {
             let file = ws.file(d.file);
             let at = file.line_index.line_col(d.span.start);
-            let text = &file.text;
-            let start = d.span.start.min(text.len());
-            let line_start = text[..start].rfind('\n').map(|i| i + 1).unwrap_or(0);
-            let line_end = text[start..]
-                .find('\n')
-                .map(|i| start + i)
-                .unwrap_or(text.len());
             Finding {
                 file: file.display.clone(),
                 line: at.line as usize + 1,
                 severity: d.severity.as_str(),
                 rule: d.rule.to_string(),
                 message: d.message.clone(),
-                context: collapse(&text[line_start..line_end]),
+                context: collapse(file.line_text(d.span.start)),
             }
         })
         .collect();
