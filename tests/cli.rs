@@ -435,6 +435,20 @@ fn explain_lists_and_documents_every_rule() {
     let unknown = guardband(&root, &["explain", "limit-within-lod"]);
     assert_eq!(unknown.code, 2);
     assert!(unknown.stderr.contains("limit-within-load"));
+    // The language's own diagnostics, whose names the output shows too.
+    for (code, meaning) in guardband_model::LANGUAGE_DIAGNOSTICS {
+        let one = guardband(&root, &["explain", code]);
+        assert_eq!(one.code, 0, "{code}: {}", one.stderr);
+        assert!(one.stdout.contains(meaning), "{code}");
+        assert!(one.stdout.contains("## How to fix"), "{code}");
+        assert!(one.stdout.contains("does not replace sign-off"), "{code}");
+    }
+    let near = guardband(&root, &["explain", "unit-mismach"]);
+    assert!(
+        near.stderr.contains("did you mean `unit-mismatch`"),
+        "{}",
+        near.stderr
+    );
 }
 
 #[test]

@@ -474,6 +474,24 @@ fn print_line(text: &str) {
     let _ = writeln!(std::io::stdout().lock(), "{text}");
 }
 
+/// The documentation of one of the language's own diagnostics (those the
+/// output names beside the lint rules: `syntax`, `unit-mismatch`, ...).
+fn explain_language(code: &str, meaning: &str) -> String {
+    format!(
+        "# {code}\n\nA diagnostic of the guardband language, not a lint rule: {meaning}.\n\n\
+         ## What it means\n\nThe checker found a problem with the input itself (its text, units, \
+         names, imports, waivers or configuration) rather than with the design. Where it could \
+         not read a value, that value is unknown: nothing is derived from it and the figures \
+         that need it are reported as not derived, so fix these before reading the other \
+         findings.\n\n\
+         ## How to fix\n\nThe message names what was expected and, where it can, the closest \
+         accepted spelling. The language reference (crates/guardband-syntax/REFERENCE.md) lists \
+         every block, field and unit a spec may use. Language diagnostics cannot be turned off \
+         in guardband.toml.\n\n{}",
+        guardband_rules::CAUTION
+    )
+}
+
 fn explain(rule: Option<String>, list: bool, format: ListFormat) -> ExitCode {
     let rules = guardband_rules::registry();
     if list || rule.is_none() {
@@ -499,13 +517,29 @@ fn explain(rule: Option<String>, list: bool, format: ListFormat) -> ExitCode {
         return ExitCode::SUCCESS;
     }
     let name = rule.unwrap_or_default();
+    let language = guardband_model::LANGUAGE_DIAGNOSTICS
+        .iter()
+        .find(|(code, _)| *code == name);
     match rules.iter().find(|r| r.name == name) {
         Some(r) => {
             print_line(&r.explain());
             ExitCode::SUCCESS
         }
+        None if language.is_some() => {
+            let (code, meaning) = language.copied().unwrap_or_default();
+            print_line(&explain_language(code, meaning));
+            ExitCode::SUCCESS
+        }
         None => {
-            let names: Vec<&str> = rules.iter().map(|r| r.name).collect();
+            let names: Vec<&str> = rules
+                .iter()
+                .map(|r| r.name)
+                .chain(
+                    guardband_model::LANGUAGE_DIAGNOSTICS
+                        .iter()
+                        .map(|(c, _)| *c),
+                )
+                .collect();
             let hint = guardband_model::did_you_mean(&name, names.iter().copied())
                 .map(|s| format!("; did you mean `{s}`?"))
                 .unwrap_or_default();
