@@ -255,6 +255,17 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
             "conductor hover lacks `{want}`:\n{conductor}"
         );
     }
+    // A short to supply shows its currents; this pass device blocks the reverse path.
+    let to_cell = hover(&mut client, pos16(&text, "fault vout_to_cell", 0, 8));
+    for want in [
+        "`vout_to_cell`: reverse current from the 2.7 V .. 4.4 V supply: none",
+        "reverse_blocking = true",
+    ] {
+        assert!(
+            to_cell.contains(want),
+            "short-to-supply hover lacks `{want}`:\n{to_cell}"
+        );
+    }
     // The thermal shutdown shows the junction at rated load beside the fault heat.
     let shutdown = hover(&mut client, pos16(&text, "thermal_shutdown {", 0, 3));
     for want in [
@@ -365,7 +376,7 @@ fn definition_references_and_rename_across_imports() {
     );
     let refs = refs.as_array().expect("refs");
     assert_eq!(refs.len(), 2, "{refs:?}");
-    // Rename the pin `vout`: its name, `pin = vout` twice, `carries = vout` twice and `force vout`.
+    // Rename the pin `vout`: its name, `pin = vout` three times, `carries = vout` twice and `force vout`.
     let prepare = client.request(
         "textDocument/prepareRename",
         json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5) }),
@@ -376,7 +387,7 @@ fn definition_references_and_rename_across_imports() {
         json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5), "newName": "out_pin" }),
     );
     let edits = edit["changes"][u.as_str()].as_array().expect("edits");
-    assert_eq!(edits.len(), 6, "{edits:?}");
+    assert_eq!(edits.len(), 7, "{edits:?}");
     // A name already taken in the regulator is refused.
     let clash = client.request_full(
         "textDocument/rename",

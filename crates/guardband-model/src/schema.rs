@@ -320,6 +320,21 @@ pub const BLOCKS: &[BlockSpec] = &[
                 CURRENT,
                 "output drive of the error amplifier at the gate",
             ),
+            f(
+                "body_diode",
+                VOLTAGE,
+                "forward drop of the body diode from the output to the input (not stated: 0 V, the most reverse current)",
+            ),
+            f(
+                "reverse_blocking",
+                FieldType::Bool,
+                "`true` when no diode conducts from the output to the input (a switched body or a blocking device)",
+            ),
+            f(
+                "reverse_rating",
+                CURRENT,
+                "the most current the pass device may carry from the output back to the input",
+            ),
             DESCRIPTION,
         ],
     },
@@ -523,6 +538,16 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "where the fault is applied",
             ),
             f("event", FieldType::Choice(EVENTS), "what happens"),
+            f(
+                "voltage",
+                VOLTAGE,
+                "short_to_supply: the voltage the pin is shorted to",
+            ),
+            f(
+                "resistance",
+                q(Dimension::RESISTANCE),
+                "short_to_supply: the resistance of the short and its source, in series",
+            ),
             f(
                 "exercises",
                 FieldType::Ref(&[

@@ -51,7 +51,8 @@ fn inputs(reg: &Node) -> Figure<Inputs> {
     })
 }
 
-fn junction(ambient: f64, power: f64, theta: f64) -> f64 {
+/// T_J = T_A + P·θJA, in kelvin.
+pub(super) fn junction(ambient: f64, power: f64, theta: f64) -> f64 {
     thermal::junction_temperature(
         q::ThermodynamicTemperature::new::<uom::si::thermodynamic_temperature::kelvin>(ambient),
         q::Power::new::<uom::si::power::watt>(power),

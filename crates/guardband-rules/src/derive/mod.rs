@@ -9,10 +9,12 @@
 pub mod conductor;
 pub mod current;
 pub mod envelope;
+pub mod expected;
 pub mod heat;
 pub mod load;
 pub mod startup;
 pub mod statistics;
+pub mod supply_short;
 pub mod unknown;
 pub mod view;
 pub mod window;
@@ -25,6 +27,7 @@ pub use startup::Startup;
 pub use statistics::{
     Contributor, RangeMode, StatSettings, Statistical, escape_ppm, sigmas_below, statistical,
 };
+pub use supply_short::{Reverse, SupplyShort};
 pub use unknown::{Figure, Need, Unknown};
 pub use window::{LimitWindow, Scheme, UnreadLimit};
 
@@ -63,6 +66,8 @@ pub struct Derived {
     /// The hottest the die gets in a fault.
     pub fault_temperature: Figure<FaultTemperature>,
     pub startup: Figure<Startup>,
+    /// Each `short_to_supply` fault case, in the order written.
+    pub supply_shorts: Vec<(NodeId, Figure<SupplyShort>)>,
     pub conductors: Vec<ConductorRating>,
 }
 
@@ -106,6 +111,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
     // The regulator's load, read once for every figure that needs it.
     let reg_load = Load::need(reg, "load");
     let startup = startup::startup(model, reg, &currents, &reg_load);
+    let supply_shorts = supply_short::supply_shorts(model, reg, &currents, &overload);
     let inputs = conductor::RatingInputs {
         model,
         reg,
@@ -146,6 +152,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         fault_temperature,
         cycling,
         startup,
+        supply_shorts,
         conductors,
     }
 }

@@ -29,6 +29,7 @@ pub enum Role {
     FaultTemperature,
     StartupSurge,
     StartupTime,
+    SupplyShort,
     ConductorRating,
     NotDerived,
 }
@@ -421,6 +422,9 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         }
         Err(u) => out.push(not_derived(reg, "startup", u)),
     }
+    for (id, short) in &d.supply_shorts {
+        supply_short_rows(model, *id, short, unit, &mut out);
+    }
     for c in &d.conductors {
         let name = model.node(c.node).key();
         let mut r = match &c.rating {
@@ -481,4 +485,87 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         out.push(r);
     }
     out
+}
+
+/// The rows of one `short_to_supply` fault case.
+fn supply_short_rows(
+    model: &Model,
+    fault: NodeId,
+    short: &super::Figure<super::SupplyShort>,
+    unit: Option<&str>,
+    out: &mut Vec<Row>,
+) {
+    let name = model.node(fault).key();
+    let s = match short {
+        Ok(s) => s,
+        Err(u) => {
+            let mut r = row(
+                fault,
+                Role::SupplyShort,
+                format!("`{name}`: short to supply"),
+                "",
+            );
+            r.value = format!("not derived: {}", u.describe(model));
+            out.push(r);
+            return;
+        }
+    };
+    let forced = if s.forced.0 < s.forced.1 {
+        format!("{} .. {}", volts(s.forced.0), volts(s.forced.1))
+    } else {
+        volts(s.forced.1)
+    };
+    if let Some((i, cause)) = &s.forward {
+        let mut r = row(
+            fault,
+            Role::SupplyShort,
+            format!("`{name}`: sourced into the {forced} supply"),
+            format!("up to {}", amps(*i, unit)),
+        );
+        r.current = Some((0.0, *i));
+        r.basis = cause.clone();
+        out.push(r);
+    }
+    let label = format!("`{name}`: reverse current from the {forced} supply");
+    match &s.reverse {
+        Ok(rev) => {
+            let value = match rev.lo {
+                Some(lo) if lo > 0.0 => format!("{} .. {}", amps(lo, unit), amps(rev.hi, unit)),
+                _ if rev.hi == 0.0 => "none".to_string(),
+                _ => format!("up to {}", amps(rev.hi, unit)),
+            };
+            let mut r = row(fault, Role::SupplyShort, label, value);
+            r.current = Some((rev.lo.unwrap_or(0.0), rev.hi));
+            r.basis = rev.why.clone();
+            out.push(r);
+        }
+        Err(u) => {
+            let mut r = row(fault, Role::SupplyShort, label, "");
+            r.value = format!("not derived: {}", u.describe(model));
+            out.push(r);
+        }
+    }
+    match &s.heat {
+        Ok(Some(h)) => {
+            let mut r = row(
+                fault,
+                Role::SupplyShort,
+                format!("`{name}`: junction"),
+                dissipated(h),
+            );
+            r.basis = format!(
+                "T_A + P·θJA with {}, θJA {} from {}",
+                h.reason,
+                theta(h),
+                celsius(h.ambient)
+            );
+            out.push(r);
+        }
+        Ok(None) => {}
+        Err(u) => {
+            let mut r = row(fault, Role::SupplyShort, format!("`{name}`: junction"), "");
+            r.value = format!("not derived: {}", u.describe(model));
+            out.push(r);
+        }
+    }
 }

@@ -8,11 +8,17 @@
 //! - `expect current` at `startup`: the surge;
 //! - `expect junction` in a short (at 0 V) or an overload (the worst point
 //!   of a partial short);
-//! - `expect time` at `startup`: the startup time.
+//! - `expect time` at `startup`: the startup time;
+//! - `expect current` in a `short_to_supply` case: the current the
+//!   regulator sources into the forcing supply or the reverse current
+//!   through the pass device's body diode, whichever is larger;
+//!   `expect junction` there: the hotter of the diode's conduction and the
+//!   worst point of an overload.
 //!
 //! `<=` and `<` are held against the upper bound of the figure, `>=` and
 //! `>` against its lower bound; a bound with a tolerance is taken at its
-//! strict end. `expect output` is recorded but not derived.
+//! strict end. An expectation with no derived bound to hold it against is
+//! named by `expectation-unchecked`.
 //!
 //! ## Why it matters
 //! The plan says what the bench or simulation should show. If the spec's own
@@ -36,75 +42,10 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::derive::{Derived, envelope};
+use crate::derive::expected::{Bounds, Expected, expected};
 use crate::show::{difference, versus};
 use guardband_model::{BlockKind, Diagnostic, Value};
 use guardband_syntax::Relation;
-
-/// A derived figure's bounds over every corner (either may be unknown) and why.
-struct Bounds {
-    lo: Option<f64>,
-    hi: Option<f64>,
-    why: String,
-}
-
-fn figure(d: &Derived, event: &str, name: &str) -> Option<Bounds> {
-    let currents = d.currents.as_ref().ok();
-    match (event, name) {
-        ("short_to_ground", "current") => {
-            let c = currents?;
-            let (hi, cause) = c.upper_at(0.0)?;
-            Some(Bounds {
-                lo: c.lower_at(0.0),
-                hi: Some(hi),
-                why: format!("{} with the output at 0 V", cause.what),
-            })
-        }
-        ("overload", "current") => {
-            let w = d.worst.as_ref().ok()?;
-            Some(Bounds {
-                lo: currents
-                    .and_then(|c| c.lower.as_ref().ok())
-                    .and_then(|l| envelope::least(l)),
-                hi: Some(w.value),
-                why: w.cause.what.clone(),
-            })
-        }
-        ("startup", "current") => {
-            let s = d.startup.as_ref().ok()?;
-            Some(Bounds {
-                lo: None,
-                hi: Some(s.surge),
-                why: s.surge_reason.clone(),
-            })
-        }
-        ("short_to_ground", "junction") => {
-            let h = d.short.as_ref().ok()?;
-            Some(Bounds {
-                lo: h.junction_lo,
-                hi: Some(h.junction),
-                why: "junction in a sustained short, T_A + P·θJA".into(),
-            })
-        }
-        ("overload", "junction") => {
-            let h = d.overload.as_ref().ok()?;
-            Some(Bounds {
-                lo: None,
-                hi: Some(h.junction),
-                why: "junction at the worst point of an overload, T_A + P·θJA".into(),
-            })
-        }
-        ("startup", "time") => {
-            let s = d.startup.as_ref().ok()?;
-            Some(Bounds {
-                lo: s.time_lo,
-                hi: Some(s.time.unwrap_or(f64::INFINITY)),
-                why: "startup time".into(),
-            })
-        }
-        _ => None,
-    }
-}
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
@@ -118,7 +59,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     continue;
                 };
                 let name = exp.name.as_deref().unwrap_or("");
-                let Some(fig) = figure(d, event, name) else {
+                let Expected::Bounds(fig) = expected(d, fault, event, name) else {
                     continue;
                 };
                 let Some((derived, limit, upper)) = contradiction(exp.relation, &fig, bound) else {

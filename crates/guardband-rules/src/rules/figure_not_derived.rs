@@ -7,7 +7,8 @@
 //! Heat is reported when the spec asks for it (a junction limit, a thermal
 //! shutdown, θJA or a junction expectation; heat at rated load, which
 //! needs `quiescent`, with a junction limit or a thermal shutdown), startup when it has a
-//! `startup` block or a startup fault case.
+//! `startup` block or a startup fault case; for a `short_to_supply` fault
+//! case, its reverse current (and its heat when it expects a junction).
 //!
 //! ## Why it matters
 //! A value the checker cannot read is unknown, not zero: a typo in one
@@ -71,6 +72,24 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             figures.push(("startup", u));
         }
         push(ctx, out, reg, &figures);
+        for (id, short) in &d.supply_shorts {
+            let fault = ctx.node(*id);
+            let figures: Vec<(&str, &Unknown)> = match short {
+                Err(u) => vec![("the short to supply", u)],
+                Ok(s) => {
+                    let mut v = Vec::new();
+                    if let Err(u) = &s.reverse {
+                        v.push(("reverse current", u));
+                    }
+                    let wants = fault.named_field("expect", "junction").is_some();
+                    if let (Err(u), true, Ok(_)) = (&s.heat, wants, &s.reverse) {
+                        v.push(("heat", u));
+                    }
+                    v
+                }
+            };
+            push(ctx, out, fault, &figures);
+        }
     }
 }
 

@@ -28,6 +28,8 @@ crate::registry::declare_rules! {
         "an exact value feeding a worst-case derivation";
     expectation_violated: "expectation-violated", Some(Severity::Error),
         "a fault case's expectation contradicted by the derived worst case";
+    expectation_unchecked: "expectation-unchecked", Some(Severity::Warning),
+        "a fault case's expectation with no derived bound to hold it against";
     supply_surge_exceeded: "supply-surge-exceeded", Some(Severity::Error),
         "a startup surge above the supply's surge limit, however it is bounded";
     pass_device_weak: "pass-device-weak", Some(Severity::Error),
@@ -40,6 +42,8 @@ crate::registry::declare_rules! {
         "a junction at rated load above its limit or at the thermal shutdown's trip point";
     load_line_latch: "load-line-latch", Some(Severity::Error),
         "a least delivered current that does not clear the load line from 0 V to regulation";
+    reverse_current_overstress: "reverse-current-overstress", Some(Severity::Error),
+        "a reverse current in a short to supply above the pass device's or a conductor's rating";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }
