@@ -118,7 +118,13 @@ pub const WIRE_MATERIALS: &[&str] = &["copper", "aluminium", "gold"];
 /// The choices of `pin.role`.
 pub const PIN_ROLES: &[&str] = &["output", "supply", "ground", "other"];
 /// The choices of `fault.event`.
-pub const EVENTS: &[&str] = &["short_to_ground", "short_to_supply", "overload", "startup"];
+pub const EVENTS: &[&str] = &[
+    "short_to_ground",
+    "short_to_supply",
+    "reverse_current",
+    "overload",
+    "startup",
+];
 
 /// Every block kind the language knows.
 pub const BLOCKS: &[BlockSpec] = &[
@@ -541,12 +547,12 @@ pub const BLOCKS: &[BlockSpec] = &[
             f(
                 "voltage",
                 VOLTAGE,
-                "short_to_supply: the voltage the pin is shorted to",
+                "short_to_supply: the voltage the pin is shorted to; reverse_current: the voltage the input falls to",
             ),
             f(
                 "resistance",
                 q(Dimension::RESISTANCE),
-                "short_to_supply: the resistance of the short and its source, in series",
+                "short_to_supply, reverse_current: the resistance in series with the reverse path",
             ),
             f(
                 "exercises",

@@ -92,7 +92,8 @@ pub fn ppm(ppm: f64, sigmas: Option<f64>) -> String {
     }
 }
 
-fn in_unit_digits(si: f64, kind: QuantityKind, unit: Option<&str>, d: i32) -> String {
+/// An SI value in `unit` with `significant` digits (see [`in_unit`]).
+pub fn in_unit_digits(si: f64, kind: QuantityKind, unit: Option<&str>, d: i32) -> String {
     let number = |x: f64| digits(x, d);
     if let Some(u) = unit.and_then(|u| parse_unit(u).ok().map(|p| (u, p))) {
         let (text, parsed) = u;

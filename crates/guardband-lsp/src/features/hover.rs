@@ -222,7 +222,9 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
                 Role::WorstCurrent | Role::OverloadHeat | Role::Recovery
             ),
             Some("startup") => matches!(r.role, Role::StartupSurge | Role::StartupTime),
-            Some("short_to_supply") => r.role == Role::SupplyShort && r.node == node.id,
+            Some("short_to_supply" | "reverse_current") => {
+                r.role == Role::ReverseCase && r.node == node.id
+            }
             _ => false,
         },
         _ => false,

@@ -92,8 +92,8 @@ fn lookup(d: &Derived, fault: &Node, event: &str, name: &str) -> Result<Expected
                 "startup time",
             )
         }
-        ("short_to_supply", "current") => {
-            let s = supply_short(d, fault)?;
+        ("short_to_supply" | "reverse_current", "current") => {
+            let s = reverse_case(d, fault)?;
             let r = known(&s.reverse)?;
             let why = match &s.forward {
                 Some((f, cause)) if *f >= r.hi => {
@@ -106,8 +106,8 @@ fn lookup(d: &Derived, fault: &Node, event: &str, name: &str) -> Result<Expected
             let lo = if s.forward.is_none() { r.lo } else { None };
             bounded(lo, s.current_hi(), why)
         }
-        ("short_to_supply", "junction") => {
-            let s = supply_short(d, fault)?;
+        ("short_to_supply" | "reverse_current", "junction") => {
+            let s = reverse_case(d, fault)?;
             match known(&s.heat)? {
                 Some(h) => bounded(
                     None,
@@ -125,9 +125,9 @@ fn lookup(d: &Derived, fault: &Node, event: &str, name: &str) -> Result<Expected
     })
 }
 
-fn supply_short<'d>(d: &'d Derived, fault: &Node) -> Result<&'d super::SupplyShort, Expected> {
+fn reverse_case<'d>(d: &'d Derived, fault: &Node) -> Result<&'d super::ReverseCase, Expected> {
     let (_, s) = d
-        .supply_shorts
+        .reverse_cases
         .iter()
         .find(|(id, _)| *id == fault.id)
         .ok_or(Expected::NotDerived)?;

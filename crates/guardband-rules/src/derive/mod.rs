@@ -12,9 +12,9 @@ pub mod envelope;
 pub mod expected;
 pub mod heat;
 pub mod load;
+pub mod reverse;
 pub mod startup;
 pub mod statistics;
-pub mod supply_short;
 pub mod unknown;
 pub mod view;
 pub mod window;
@@ -23,11 +23,11 @@ pub use conductor::{Carries, ConductorKind, ConductorRating, Unrated};
 pub use current::{Cause, Currents, WorstCurrent};
 pub use heat::{Cycling, FaultTemperature, Heat};
 pub use load::{Load, LoadKind, Shortfall};
+pub use reverse::{Reverse, ReverseCase};
 pub use startup::Startup;
 pub use statistics::{
     Contributor, RangeMode, StatSettings, Statistical, escape_ppm, sigmas_below, statistical,
 };
-pub use supply_short::{Reverse, SupplyShort};
 pub use unknown::{Figure, Need, Unknown};
 pub use window::{LimitWindow, Scheme, UnreadLimit};
 
@@ -67,7 +67,7 @@ pub struct Derived {
     pub fault_temperature: Figure<FaultTemperature>,
     pub startup: Figure<Startup>,
     /// Each `short_to_supply` fault case, in the order written.
-    pub supply_shorts: Vec<(NodeId, Figure<SupplyShort>)>,
+    pub reverse_cases: Vec<(NodeId, Figure<ReverseCase>)>,
     pub conductors: Vec<ConductorRating>,
 }
 
@@ -111,7 +111,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
     // The regulator's load, read once for every figure that needs it.
     let reg_load = Load::need(reg, "load");
     let startup = startup::startup(model, reg, &currents, &reg_load);
-    let supply_shorts = supply_short::supply_shorts(model, reg, &currents, &overload);
+    let reverse_cases = reverse::reverse_cases(model, reg, &currents, &overload);
     let inputs = conductor::RatingInputs {
         model,
         reg,
@@ -152,7 +152,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         fault_temperature,
         cycling,
         startup,
-        supply_shorts,
+        reverse_cases,
         conductors,
     }
 }

@@ -29,7 +29,7 @@ pub enum Role {
     FaultTemperature,
     StartupSurge,
     StartupTime,
-    SupplyShort,
+    ReverseCase,
     ConductorRating,
     NotDerived,
 }
@@ -422,8 +422,8 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         }
         Err(u) => out.push(not_derived(reg, "startup", u)),
     }
-    for (id, short) in &d.supply_shorts {
-        supply_short_rows(model, *id, short, unit, &mut out);
+    for (id, short) in &d.reverse_cases {
+        reverse_case_rows(model, *id, short, unit, &mut out);
     }
     for c in &d.conductors {
         let name = model.node(c.node).key();
@@ -488,10 +488,10 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
 }
 
 /// The rows of one `short_to_supply` fault case.
-fn supply_short_rows(
+fn reverse_case_rows(
     model: &Model,
     fault: NodeId,
-    short: &super::Figure<super::SupplyShort>,
+    short: &super::Figure<super::ReverseCase>,
     unit: Option<&str>,
     out: &mut Vec<Row>,
 ) {
@@ -501,7 +501,7 @@ fn supply_short_rows(
         Err(u) => {
             let mut r = row(
                 fault,
-                Role::SupplyShort,
+                Role::ReverseCase,
                 format!("`{name}`: short to supply"),
                 "",
             );
@@ -518,7 +518,7 @@ fn supply_short_rows(
     if let Some((i, cause)) = &s.forward {
         let mut r = row(
             fault,
-            Role::SupplyShort,
+            Role::ReverseCase,
             format!("`{name}`: sourced into the {forced} supply"),
             format!("up to {}", amps(*i, unit)),
         );
@@ -526,7 +526,14 @@ fn supply_short_rows(
         r.basis = cause.clone();
         out.push(r);
     }
-    let label = format!("`{name}`: reverse current from the {forced} supply");
+    let label = match s.event {
+        super::reverse::ReverseEvent::SupplyShort => {
+            format!("`{name}`: reverse current from the {forced} supply")
+        }
+        super::reverse::ReverseEvent::InputCollapse => {
+            format!("`{name}`: reverse current with the input at {forced}")
+        }
+    };
     match &s.reverse {
         Ok(rev) => {
             let value = match rev.lo {
@@ -534,13 +541,13 @@ fn supply_short_rows(
                 _ if rev.hi == 0.0 => "none".to_string(),
                 _ => format!("up to {}", amps(rev.hi, unit)),
             };
-            let mut r = row(fault, Role::SupplyShort, label, value);
+            let mut r = row(fault, Role::ReverseCase, label, value);
             r.current = Some((rev.lo.unwrap_or(0.0), rev.hi));
             r.basis = rev.why.clone();
             out.push(r);
         }
         Err(u) => {
-            let mut r = row(fault, Role::SupplyShort, label, "");
+            let mut r = row(fault, Role::ReverseCase, label, "");
             r.value = format!("not derived: {}", u.describe(model));
             out.push(r);
         }
@@ -549,7 +556,7 @@ fn supply_short_rows(
         Ok(Some(h)) => {
             let mut r = row(
                 fault,
-                Role::SupplyShort,
+                Role::ReverseCase,
                 format!("`{name}`: junction"),
                 dissipated(h),
             );
@@ -563,7 +570,7 @@ fn supply_short_rows(
         }
         Ok(None) => {}
         Err(u) => {
-            let mut r = row(fault, Role::SupplyShort, format!("`{name}`: junction"), "");
+            let mut r = row(fault, Role::ReverseCase, format!("`{name}`: junction"), "");
             r.value = format!("not derived: {}", u.describe(model));
             out.push(r);
         }

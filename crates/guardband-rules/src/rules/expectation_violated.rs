@@ -13,7 +13,10 @@
 //!   regulator sources into the forcing supply or the reverse current
 //!   through the pass device's body diode, whichever is larger;
 //!   `expect junction` there: the hotter of the diode's conduction and the
-//!   worst point of an overload.
+//!   worst point of an overload;
+//! - `expect current` and `expect junction` in a `reverse_current` case
+//!   (the input falls below the output): the diode's peak reverse current
+//!   and its heat.
 //!
 //! `<=` and `<` are held against the upper bound of the figure, `>=` and
 //! `>` against its lower bound; a bound with a tolerance is taken at its

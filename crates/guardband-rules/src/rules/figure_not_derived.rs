@@ -7,7 +7,8 @@
 //! Heat is reported when the spec asks for it (a junction limit, a thermal
 //! shutdown, θJA or a junction expectation; heat at rated load, which
 //! needs `quiescent`, with a junction limit or a thermal shutdown), startup when it has a
-//! `startup` block or a startup fault case; for a `short_to_supply` fault
+//! `startup` block or a startup fault case; for a `short_to_supply` or
+//! `reverse_current` fault
 //! case, its reverse current (and its heat when it expects a junction).
 //!
 //! ## Why it matters
@@ -72,7 +73,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             figures.push(("startup", u));
         }
         push(ctx, out, reg, &figures);
-        for (id, short) in &d.supply_shorts {
+        for (id, short) in &d.reverse_cases {
             let fault = ctx.node(*id);
             let figures: Vec<(&str, &Unknown)> = match short {
                 Err(u) => vec![("the short to supply", u)],

@@ -1,21 +1,26 @@
 //! ## What it flags
-//! A `short_to_supply` fault case in which current can flow from the
-//! output back to the input through the pass device's body diode, and
+//! A `short_to_supply` fault case (the output pulled above the input) or a
+//! `reverse_current` one (the input falling below the output) in which
+//! current can flow from the output back to the input through the pass
+//! device's body diode, and
 //! - the pass device's `reverse_rating` is below that reverse current, or
 //!   is not stated (nothing then bounds what the device may carry);
 //! - a conductor on the output path (it `carries` the pass device or a pin,
 //!   or states nothing) is rated below the reverse current, though it
 //!   carries the forward worst current (that case is `conductor-under-rated`).
 //!
-//! The reverse current is at most `(V_s,max − V_in,min − V_f,min) / R,min`:
-//! the forcing voltage's top, the supply's bottom, the body diode's lowest
-//! drop (0 V when not stated) and the short's lowest resistance.
+//! The reverse current is at most `(V_o,max − V_i,min − V_f,min) / R,min`:
+//! the output side's top (the forcing voltage, or the regulated output),
+//! the input side's bottom (the supply, or the collapsed input), the body
+//! diode's lowest drop (0 V when not stated) and the path's lowest
+//! resistance.
 //!
 //! ## Why it matters
 //! An output pulled above the input (a pin shorted to a battery or a
-//! higher rail, a backup supply) turns the regulator's loop off, but not
-//! the body diode: the current then flows the other way, set only by the
-//! short's resistance. No current limit sees it; metal sized for the
+//! higher rail, a backup supply), or an input that collapses under a
+//! charged output capacitor, turns the regulator's loop off, but not the
+//! body diode: the current then flows the other way, set only by the
+//! path's resistance. No current limit sees it; metal sized for the
 //! forward limit and a pass device never rated for it take it all.
 //!
 //! ## Failing example
@@ -52,7 +57,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else {
             continue;
         };
-        for (id, short) in &d.supply_shorts {
+        for (id, short) in &d.reverse_cases {
             let Ok(Ok(reverse)) = short.as_ref().map(|s| s.reverse.as_ref()) else {
                 continue;
             };

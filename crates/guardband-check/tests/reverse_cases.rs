@@ -1,4 +1,5 @@
-//! A pin shorted to a supply, checked against hand calculations: the
+//! Current fed back through the pass device (a pin shorted to a supply, a
+//! collapsed input), checked against hand calculations: the
 //! reverse current through the body diode is Ohm's law around the loop,
 //! I = (V_s − V_in − V_f) / R; the diode dissipates P = I·V_f; the junction
 //! is T_J = T_A + P·θJA (textbook relations).
@@ -6,7 +7,7 @@
 mod common;
 
 use guardband_check::Checked;
-use guardband_rules::derive::{SupplyShort, Unknown};
+use guardband_rules::derive::{ReverseCase, Unknown};
 
 fn check(text: &str) -> Checked {
     common::check("supply-short-spec.guard", text)
@@ -18,8 +19,8 @@ fn spec(supply: &str, pass: &str, fault: &str) -> String {
     )
 }
 
-fn short(checked: &Checked) -> Result<&SupplyShort, &Unknown> {
-    checked.derived[0].supply_shorts[0].1.as_ref()
+fn short(checked: &Checked) -> Result<&ReverseCase, &Unknown> {
+    checked.derived[0].reverse_cases[0].1.as_ref()
 }
 
 // (5 V − 3.3 V − 0.7 V) / 2 Ω = 500 mA; 500 mA × 0.7 V = 350 mW;
@@ -140,4 +141,23 @@ fn a_supply_below_regulation_takes_the_limited_current() {
     assert!((i - 0.33).abs() < 1e-9, "{i}");
     assert_eq!(s.reverse.as_ref().unwrap().hi, 0.0);
     assert!((s.current_hi().unwrap() - 0.33).abs() < 1e-9);
+}
+
+// The input collapses to 0 V under a charged output: the diode's peak is
+// (1.836 V − 0 V − 0.6 V) / 0.5 Ω = 2.472 A (output 1.8 V ± 2 %, hand
+// calculation); at least (1.764 − 0.2 − 0.8) / 1 = 0.764 A.
+#[test]
+fn a_collapsed_input_draws_the_output_back_through_the_diode() {
+    let text = spec("3.3 V", "body_diode = 0.6 V .. 0.8 V", "voltage = 0 V")
+        .replace("short_to_supply", "reverse_current")
+        .replace(
+            "voltage = 0 V",
+            "voltage = 0 V .. 0.2 V  resistance = 0.5 ohm .. 1 ohm",
+        );
+    let c = check(&text);
+    let s = short(&c).expect("derived");
+    assert!(s.forward.is_none());
+    let r = s.reverse.as_ref().expect("reverse");
+    assert!((r.hi - 2.472).abs() < 1e-9, "{}", r.hi);
+    assert!((r.lo.unwrap() - 0.764).abs() < 1e-9, "{:?}", r.lo);
 }

@@ -1,16 +1,25 @@
-//! A pin shorted to a supply (`event = short_to_supply`): the output is
-//! held at the forcing voltage `V_s` through the short's resistance `R`.
+//! Current fed back from the output to the input through the pass device,
+//! in two fault events:
 //!
-//! - Below the regulated output's top the regulator sources into the
+//! - `short_to_supply`: a pin is shorted to a supply at `voltage` through
+//!   the short's `resistance` `R`, with the input in its `supply` range.
+//!   Below the regulated output's top the regulator sources into the
 //!   forcing supply: the current is bounded by the caps over the forcing
 //!   voltage's range, and the heat by the worst point of an overload.
-//! - Above it the loop turns the pass device off, and when
-//!   `V_s > V_in + V_f` the pass device's body diode conducts from the
-//!   output back to the input: `I = (V_s − V_in − V_f) / R` (Ohm's law
-//!   around the loop), at most `(V_s,max − V_in,min − V_f,min) / R,min`.
-//!   Its heat is `I·V_f = (A − V_f)·V_f / R` with `A = V_s,max − V_in,min`,
-//!   concave in `V_f`, so its largest value over the drop's range is at
-//!   `A/2` clamped to that range; the junction is `T_A,max + P·θJA,max`.
+//!   Above it the loop turns the pass device off.
+//! - `reverse_current`: the input falls to `voltage` (a collapsed or
+//!   shorted supply) while the output holds its regulated charge or is
+//!   held by another source.
+//!
+//! Either way, when the output side `V_o` exceeds the input side `V_i` by
+//! more than the body diode's drop `V_f`, the diode conducts back:
+//! `I = (V_o − V_i − V_f) / R` (Ohm's law around the loop), at most
+//! `(V_o,max − V_i,min − V_f,min) / R,min`; for a discharging output
+//! capacitor this is the current's peak, at its first instant. The diode's
+//! heat is `I·V_f = (A − V_f)·V_f / R` with `A = V_o,max − V_i,min`,
+//! concave in `V_f`, so its largest value over the drop's range is at
+//! `A/2` clamped to that range; the junction is `T_A,max + P·θJA,max`
+//! (as if held: an upper bound for a current that decays).
 //!
 //! An unstated body-diode drop is taken as 0 V for the current (the most
 //! that can flow) and leaves the diode's heat unknown; an unstated
@@ -24,12 +33,23 @@ use crate::show;
 use guardband_model::{BlockKind, Model, Node, NodeId};
 use guardband_units::{Dimension, QuantityKind};
 
-/// The figures of one `short_to_supply` fault case.
+/// Which fault event a case is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ReverseEvent {
+    /// `short_to_supply`: the output side is the fault's voltage.
+    SupplyShort,
+    /// `reverse_current`: the input side is the fault's voltage.
+    InputCollapse,
+}
+
+/// The figures of one `short_to_supply` or `reverse_current` fault case.
 #[derive(Debug, Clone)]
-pub struct SupplyShort {
+pub struct ReverseCase {
     /// The fault case.
     pub fault: NodeId,
-    /// The forcing voltage's range, V.
+    pub event: ReverseEvent,
+    /// The fault's `voltage` range, V: the forcing supply, or the
+    /// collapsed input.
     pub forced: (f64, f64),
     /// The most the regulator sources into the forcing supply when that
     /// can sit below the regulated output's top, A, with what sets it.
@@ -53,7 +73,7 @@ pub struct Reverse {
     pub why: String,
 }
 
-impl SupplyShort {
+impl ReverseCase {
     /// The most current between the pin and the forcing supply, either way.
     pub fn current_hi(&self) -> Option<f64> {
         let reverse = self.reverse.as_ref().ok()?.hi;
@@ -61,32 +81,54 @@ impl SupplyShort {
     }
 }
 
-/// The `short_to_supply` fault cases of `reg`, each with its figures (or
-/// why they are unknown).
-pub fn supply_shorts(
+/// The `short_to_supply` and `reverse_current` fault cases of `reg`, each
+/// with its figures (or why they are unknown).
+pub fn reverse_cases(
     model: &Model,
     reg: &Node,
     currents: &Figure<Currents>,
     overload: &Figure<Heat>,
-) -> Vec<(NodeId, Figure<SupplyShort>)> {
+) -> Vec<(NodeId, Figure<ReverseCase>)> {
     model
         .children(reg, BlockKind::Fault)
-        .filter(|f| f.choice("event") == Some("short_to_supply"))
-        .map(|f| (f.id, supply_short(model, reg, f, currents, overload)))
+        .filter_map(|f| {
+            let event = match f.choice("event")? {
+                "short_to_supply" => ReverseEvent::SupplyShort,
+                "reverse_current" => ReverseEvent::InputCollapse,
+                _ => return None,
+            };
+            Some((f.id, reverse_case(model, reg, f, event, currents, overload)))
+        })
         .collect()
 }
 
-fn supply_short(
+fn reverse_case(
     model: &Model,
     reg: &Node,
     fault: &Node,
+    event: ReverseEvent,
     currents: &Figure<Currents>,
     overload: &Figure<Heat>,
-) -> Figure<SupplyShort> {
+) -> Figure<ReverseCase> {
     let forced = need(fault, "voltage")?;
     let forced = (forced.lo, forced.hi);
-    let output_top = need(reg, "output")?.hi;
-    let forward = if forced.0 < output_top {
+    let output = need(reg, "output")?;
+    let sides = match event {
+        ReverseEvent::SupplyShort => Sides {
+            output: forced,
+            input: need(reg, "supply").map(|v| (v.lo, v.hi))?,
+            output_name: "the forcing voltage",
+            input_name: "the lowest supply",
+        },
+        ReverseEvent::InputCollapse => Sides {
+            output: (output.lo, output.hi),
+            input: forced,
+            output_name: "the output",
+            input_name: "the collapsed input",
+        },
+    };
+    let forward = if event == ReverseEvent::SupplyShort && forced.0 < output.hi {
+        let output_top = output.hi;
         let c = currents.as_ref().map_err(Clone::clone)?;
         let top = forced.1.min(output_top);
         let (i, by) = highest_between(&c.upper, forced.0.max(0.0), top)
@@ -95,9 +137,9 @@ fn supply_short(
     } else {
         None
     };
-    let reverse = reverse(model, reg, fault, forced);
+    let reverse = reverse(model, reg, fault, &sides);
     let diode = match &reverse {
-        Ok(r) if r.hi > 0.0 => diode_heat(model, reg, fault, forced).map(Some),
+        Ok(r) if r.hi > 0.0 => diode_heat(model, reg, fault, &sides).map(Some),
         Ok(_) => Ok(None),
         Err(u) => Err(u.clone()),
     };
@@ -112,8 +154,9 @@ fn supply_short(
         }),
         (_, h) => h,
     };
-    Ok(SupplyShort {
+    Ok(ReverseCase {
         fault: fault.id,
+        event,
         forced,
         forward,
         reverse,
@@ -133,12 +176,20 @@ fn highest_between(pieces: &[envelope::Piece], a: f64, b: f64) -> Option<(f64, u
         .max_by(|x, y| x.0.total_cmp(&y.0))
 }
 
+/// The voltages on either side of the pass device in a case, V.
+struct Sides {
+    output: (f64, f64),
+    input: (f64, f64),
+    output_name: &'static str,
+    input_name: &'static str,
+}
+
 /// The body diode's drop range, with whether it was stated.
 fn drop_range(pass: &Node) -> Figure<Option<(f64, f64)>> {
     Ok(optional(pass, "body_diode")?.map(|v| (v.lo, v.hi)))
 }
 
-fn reverse(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Figure<Reverse> {
+fn reverse(model: &Model, reg: &Node, fault: &Node, sides: &Sides) -> Figure<Reverse> {
     let pass = model
         .child(reg, BlockKind::Pass)
         .ok_or_else(|| Unknown::because("the regulator has no `pass` block"))?;
@@ -149,22 +200,25 @@ fn reverse(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Figur
             why: "the pass device blocks reverse current (`reverse_blocking = true`)".into(),
         });
     }
-    let supply = need(reg, "supply")?;
     let drop = drop_range(pass)?;
     let (drop_lo, drop_text) = match drop {
         Some((lo, _)) => (lo, "the body diode's lowest drop"),
         None => (0.0, "0 V for the unstated body-diode drop"),
     };
-    let drive = forced.1 - supply.lo - drop_lo;
+    // Inputs of a formula are shown with enough digits to redo it.
+    let volts = |v: f64| show::in_unit_digits(v, QuantityKind::VOLTAGE, Some("V"), 6);
+    let drive = sides.output.1 - sides.input.0 - drop_lo;
     if drive <= 0.0 {
         return Ok(Reverse {
             hi: 0.0,
             lo: Some(0.0),
             why: format!(
-                "the forcing voltage's top, {}, does not exceed the lowest supply, {}, plus {drop_text}, {}",
-                show::in_unit(forced.1, QuantityKind::VOLTAGE, Some("V")),
-                show::in_unit(supply.lo, QuantityKind::VOLTAGE, Some("V")),
-                show::in_unit(drop_lo, QuantityKind::VOLTAGE, Some("V")),
+                "{}'s top, {}, does not exceed {}, {}, plus {drop_text}, {}",
+                sides.output_name,
+                volts(sides.output.1),
+                sides.input_name,
+                volts(sides.input.0),
+                volts(drop_lo),
             ),
         });
     }
@@ -175,14 +229,13 @@ fn reverse(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Figur
             fault.key()
         )));
     }
-    let lo = drop.map(|(_, hi)| ((forced.0 - supply.hi - hi) / r.hi).max(0.0));
-    let volts = |v: f64| show::in_unit(v, QuantityKind::VOLTAGE, Some("V"));
+    let lo = drop.map(|(_, hi)| ((sides.output.0 - sides.input.1 - hi) / r.hi).max(0.0));
     let mut why = format!(
         "({} − {} − {}) / {} through the body diode",
-        volts(forced.1),
-        volts(supply.lo),
+        volts(sides.output.1),
+        volts(sides.input.0),
         volts(drop_lo),
-        show::in_unit(r.lo, QuantityKind::of(Dimension::RESISTANCE), None)
+        show::in_unit_digits(r.lo, QuantityKind::of(Dimension::RESISTANCE), None, 6)
     );
     if drop.is_none() {
         why.push_str(", the unstated body-diode drop taken as 0 V");
@@ -195,21 +248,20 @@ fn reverse(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Figur
 }
 
 /// The diode's heat and the junction it sets (see the module's comment).
-fn diode_heat(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Figure<Heat> {
+fn diode_heat(model: &Model, reg: &Node, fault: &Node, sides: &Sides) -> Figure<Heat> {
     let pass = model
         .child(reg, BlockKind::Pass)
         .ok_or_else(|| Unknown::because("the regulator has no `pass` block"))?;
     let (drop_lo, drop_hi) = need(pass, "body_diode").map(|v| (v.lo, v.hi))?;
-    let supply = need(reg, "supply")?;
     let r = need(fault, "resistance")?.lo;
     let ambient = need(reg, "ambient")?.hi;
     let theta = need(reg, "theta_ja")?.hi;
-    let a = forced.1 - supply.lo;
+    let a = sides.output.1 - sides.input.0;
     let vf = (a / 2.0).clamp(drop_lo.max(0.0), drop_hi.max(0.0));
     let current = ((a - vf) / r).max(0.0);
     let power = current * vf;
     Ok(Heat {
-        at_voltage: forced.1,
+        at_voltage: sides.output.1,
         current,
         reason: format!(
             "the body diode conducting {} at a {} drop",
@@ -219,7 +271,7 @@ fn diode_heat(model: &Model, reg: &Node, fault: &Node, forced: (f64, f64)) -> Fi
         power,
         junction: heat::junction(ambient, power, theta),
         junction_lo: None,
-        supply: supply.lo,
+        supply: sides.input.0,
         ambient,
         theta,
     })
