@@ -49,7 +49,9 @@ enum Scheme {
         reference: Tol, // A
         mismatch: f64,
         drain: f64,
-        foldback: Option<Tol>, // A at 0 V
+        /// A at 0 V, the foldback's own current at regulation (A) and its
+        /// knee (V) when stated.
+        foldback: Option<(Tol, Option<Tol>, Option<Range>)>,
     },
     Undervoltage {
         threshold: Tol, // V
@@ -87,9 +89,15 @@ fn spec_text(s: &Spec) -> String {
             foldback,
         } => {
             let fold = foldback
-                .map(|f| {
+                .map(|(f, at_reg, knee)| {
+                    let at_reg = at_reg
+                        .map(|r| format!("  at_regulation = {} ± {}", ma(r.nom), pct(r.tol)))
+                        .unwrap_or_default();
+                    let knee = knee
+                        .map(|k| format!("  knee = {} V .. {} V", k.lo, k.hi))
+                        .unwrap_or_default();
                     format!(
-                        "    foldback {{ current = {} ± {} }}\n",
+                        "    foldback {{ at_zero = {} ± {}{at_reg}{knee} }}\n",
                         ma(f.nom),
                         pct(f.tol)
                     )
@@ -194,12 +202,24 @@ fn draw(s: &Spec, u: &mut dyn FnMut() -> f64) -> Draw {
                 ratio * reference.at(u()) * (1.0 + u() * mismatch) * (1.0 + u() * drain);
             match foldback {
                 // The foldback line runs from its current at 0 V to the limit
-                // at regulation (the drawn output voltage).
-                Some(f) => {
+                // at regulation (the drawn output voltage, or a stated knee).
+                Some((f, None, knee)) => {
                     let at0 = f.at(u());
+                    let k = knee.map_or(vout, |k| k.at(u()));
                     (
-                        Box::new(move |v: f64| Some(at0 + (threshold - at0) * (v / vout).min(1.0))),
-                        vec![vout],
+                        Box::new(move |v: f64| Some(at0 + (threshold - at0) * (v / k).min(1.0))),
+                        vec![k],
+                    )
+                }
+                // With its own current at regulation it caps beside the limit.
+                Some((f, Some(r), knee)) => {
+                    let (at0, at_reg) = (f.at(u()), r.at(u()));
+                    let k = knee.map_or(vout, |k| k.at(u()));
+                    (
+                        Box::new(move |v: f64| {
+                            Some(threshold.min(at0 + (at_reg - at0) * (v / k).min(1.0)))
+                        }),
+                        vec![k],
                     )
                 }
                 None => (Box::new(move |_| Some(threshold)), vec![]),
@@ -329,7 +349,11 @@ fn scheme() -> impl Strategy<Value = Scheme> {
             tol(20e-6..120e-6, 0.02..0.25),
             0.0f64..0.1,
             0.0f64..0.08,
-            proptest::option::of(tol(0.02..0.15, 0.05..0.3)),
+            proptest::option::of((
+                tol(0.02..0.15, 0.05..0.3),
+                proptest::option::of(tol(0.01..0.4, 0.05..0.3)),
+                proptest::option::of(range(0.3..2.0, 0.0..0.5)),
+            )),
         )
             .prop_map(
                 |(ratio, reference, mismatch, drain, foldback)| Scheme::Replica {

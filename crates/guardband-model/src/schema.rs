@@ -432,7 +432,17 @@ pub const BLOCKS: &[BlockSpec] = &[
         doc: "current foldback as the output collapses",
         children: &[],
         fields: &[
-            f("current", CURRENT, "current with the output shorted"),
+            f("at_zero", CURRENT, "current with the output at 0 V"),
+            f(
+                "at_regulation",
+                CURRENT,
+                "its own current at the knee and above; without it the foldback bends the sensed limits (or the full-gate current) down to `at_zero`",
+            ),
+            f(
+                "knee",
+                VOLTAGE,
+                "output voltage at which the line reaches `at_regulation` or the limit (default: the regulated output)",
+            ),
             DESCRIPTION,
         ],
     },

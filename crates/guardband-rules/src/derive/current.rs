@@ -119,16 +119,15 @@ pub fn currents(
         None
     });
     let foldback = model.child(reg, BlockKind::Foldback);
-    let fold_current = match foldback {
-        Some(f) => match need(f, "current") {
-            Ok(v) => Some((f.id, v.clone())),
-            Err(u) => {
-                unknown = std::mem::take(&mut unknown).join(&u);
-                None
-            }
-        },
+    let fold = match foldback.map(read_foldback) {
+        Some(Ok(f)) => Some(f),
+        Some(Err(u)) => {
+            unknown = std::mem::take(&mut unknown).join(&u);
+            None
+        }
         None => None,
     };
+    let fold_current = fold.as_ref().map(|f| (f.node, f.at_zero.clone()));
     let output = reg.quantity("output");
     let varies =
         fold_current.is_some() || limits.iter().any(|l| l.scheme == Scheme::UndervoltageFixed);
@@ -139,36 +138,28 @@ pub fn currents(
         }
         None => 0.0,
     };
-    let (knee_lo, knee_hi) = output
-        .map(|o| (o.lo.max(0.0), o.hi.max(0.0)))
-        .unwrap_or((0.0, 0.0));
-    // A foldback bends a cap from its own current at 0 V up to the cap at
-    // regulation: highest with the knee at the lowest regulated output,
-    // lowest with it at the highest.
-    let folded = |b: &mut Builder, by: usize, lo: f64, hi: f64, fold: &guardband_model::Value| {
-        b.upper.push(Cap {
-            by,
-            pieces: vec![
-                (
-                    f64::NEG_INFINITY,
-                    knee_lo,
-                    Some(Line::through(0.0, fold.hi, knee_lo, hi)),
-                ),
-                (knee_lo, f64::INFINITY, Some(Line::flat(hi))),
-            ],
-        });
-        b.lower.push(Cap {
-            by,
-            pieces: vec![
-                (
-                    f64::NEG_INFINITY,
-                    knee_hi,
-                    Some(Line::through(0.0, fold.lo, knee_hi, lo)),
-                ),
-                (knee_hi, f64::INFINITY, Some(Line::flat(lo))),
-            ],
-        });
+    let knee = match fold.as_ref().and_then(|f| f.knee) {
+        Some(k) => k,
+        None => output
+            .map(|o| (o.lo.max(0.0), o.hi.max(0.0)))
+            .unwrap_or((0.0, 0.0)),
     };
+    // A foldback bends a cap from its own current at 0 V to the cap at
+    // regulation, reached at the knee.
+    let folded = |b: &mut Builder, by: usize, lo: f64, hi: f64, fold: &guardband_model::Value| {
+        let (upper, lower) = fold_caps(by, (fold.lo, fold.hi), (lo, hi), knee);
+        b.upper.push(upper);
+        b.lower.push(lower);
+    };
+    // A foldback with its own current at regulation is a protection of its own.
+    if let Some(f) = &fold
+        && let Some(at_reg) = &f.at_regulation
+    {
+        let by = b.cause(f.node, "at_regulation", "the foldback line".to_string());
+        folded(&mut b, by, at_reg.lo, at_reg.hi, &f.at_zero);
+    }
+    let bends = fold.as_ref().is_some_and(|f| f.at_regulation.is_none());
+    let fold_current = fold_current.filter(|_| bends);
     let mut sensed = 0;
     for l in limits {
         let node = model.node(l.node);
@@ -186,7 +177,7 @@ pub fn currents(
                     Some((f, fold)) => {
                         let by = b.cause(
                             *f,
-                            "current",
+                            "at_zero",
                             format!("the `{}` limit folded back toward 0 V", node.key()),
                         );
                         folded(&mut b, by, window.lo, window.hi, fold);
@@ -338,4 +329,50 @@ pub fn worst_current(model: &Model, reg: &Node, c: &Currents) -> Figure<WorstCur
         cause,
         unlimited,
     })
+}
+
+/// A foldback as written: its current at 0 V, its own current at the knee
+/// when stated, and the knee when stated.
+struct Foldback {
+    node: NodeId,
+    at_zero: guardband_model::Value,
+    at_regulation: Option<guardband_model::Value>,
+    knee: Option<(f64, f64)>,
+}
+
+fn read_foldback(f: &Node) -> Figure<Foldback> {
+    let (at_zero, (at_regulation, knee)) = super::unknown::both(
+        need(f, "at_zero"),
+        super::unknown::both(optional(f, "at_regulation"), optional(f, "knee")),
+    )?;
+    Ok(Foldback {
+        node: f.id,
+        at_zero: at_zero.clone(),
+        at_regulation: at_regulation.cloned(),
+        knee: knee.map(|k| (k.lo.max(0.0), k.hi.max(0.0))),
+    })
+}
+
+/// The caps of a line from `zero` at 0 V to `top` at the knee and flat
+/// above, over every corner of the three. The current at any voltage rises
+/// with both currents, so the upper cap takes their high ends and the
+/// lower cap their low ends; the knee's extreme depends on which way the
+/// line runs: a rising line is highest with the knee at its lowest, a
+/// falling one (more current at 0 V than at the knee) with the knee at its
+/// highest, and the other way round for the lower cap.
+fn fold_caps(by: usize, zero: (f64, f64), top: (f64, f64), knee: (f64, f64)) -> (Cap, Cap) {
+    let cap = |z: f64, t: f64, k: f64| Cap {
+        by,
+        pieces: vec![
+            (f64::NEG_INFINITY, k, Some(Line::through(0.0, z, k, t))),
+            (k, f64::INFINITY, Some(Line::flat(t))),
+        ],
+    };
+    let (knee_lo, knee_hi) = knee;
+    let upper_knee = if zero.1 <= top.1 { knee_lo } else { knee_hi };
+    let lower_knee = if zero.0 <= top.0 { knee_hi } else { knee_lo };
+    (
+        cap(zero.1, top.1, upper_knee),
+        cap(zero.0, top.0, lower_knee),
+    )
 }

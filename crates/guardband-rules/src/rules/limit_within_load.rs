@@ -6,7 +6,11 @@
 //! deviations, the contributions are combined by root-sum-square, and the
 //! normal tail below rated load plus margin must not exceed `escape_ppm`.
 //! For the undervoltage-triggered scheme the characterised trip current is
-//! checked, since the fixed current may sit below the load.
+//! checked, since the fixed current may sit below the load. A foldback is
+//! checked where it still acts in regulation: its own `at_regulation` at
+//! the output's low edge, or its line there when a stated `knee` lies above
+//! that edge (the low ends of its currents, the knee at whichever end
+//! gives less).
 //!
 //! ## Why it matters
 //! A limit that trips inside normal operation drops the output under rated
@@ -37,7 +41,7 @@ use crate::compare;
 use crate::context::Context;
 use crate::derive::{Scheme, escape_ppm, sigmas_below, stat_settings, statistical};
 use crate::show::{difference, in_unit, percent, versus};
-use guardband_model::{Diagnostic, Value};
+use guardband_model::{BlockKind, Diagnostic, Value};
 use guardband_units::QuantityKind;
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
@@ -117,7 +121,96 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 }
             }
         }
+        foldback(ctx, d, rated, required, out);
     }
+}
+
+/// The least a foldback delivers at output voltage `v`: its line from
+/// `zero` at 0 V to `top` at the knee, flat above, the knee at either end
+/// of its range (the line is monotonic in the knee).
+fn folded_least(zero: f64, top: f64, knee: (f64, f64), v: f64) -> f64 {
+    let at = |k: f64| {
+        if v >= k || k <= 0.0 {
+            top
+        } else {
+            zero + (top - zero) * v / k
+        }
+    };
+    at(knee.0).min(at(knee.1))
+}
+
+fn foldback(
+    ctx: &Context,
+    d: &crate::derive::Derived,
+    rated: f64,
+    required: f64,
+    out: &mut Vec<Diagnostic>,
+) {
+    let reg = ctx.node(d.regulator);
+    let Some(f) = ctx.model.child(reg, BlockKind::Foldback) else {
+        return;
+    };
+    let (Some(output), Some(zero)) = (reg.quantity("output"), f.quantity("at_zero")) else {
+        return;
+    };
+    let knee = f.quantity("knee").map(|k| (k.lo, k.hi));
+    // The level the line folds up to, low end: its own, or the sensed limits' least.
+    let (top, top_what) = match f.quantity("at_regulation") {
+        Some(r) => (r.lo, "its `at_regulation`"),
+        None => {
+            // Without its own level it bends the sensed limits; with the
+            // knee tied to the output it reaches them in regulation.
+            let Some(knee) = knee else { return };
+            let least = d
+                .limits
+                .iter()
+                .filter(|l| l.scheme == Scheme::Replica)
+                .filter_map(|l| l.window.as_ref().ok().map(|w| w.lo))
+                .reduce(f64::min);
+            match least {
+                Some(lo) if knee.1 > output.lo => (lo, "the sensed limit's low edge"),
+                _ => return,
+            }
+        }
+    };
+    let (level, key) = match knee {
+        Some(k) if k.1 > output.lo => (folded_least(zero.lo, top, k, output.lo), "knee"),
+        _ => (top, "at_regulation"),
+    };
+    if !compare::at_most(level, required) {
+        return;
+    }
+    let unit = zero.unit.as_deref().or(d.load_unit.as_deref());
+    let (low, need) = versus(level, required, QuantityKind::CURRENT, unit);
+    let gap = difference(level, required, QuantityKind::CURRENT, unit);
+    let relation = if compare::below(level, required) {
+        format!("{gap} below")
+    } else {
+        "equal to".to_string()
+    };
+    let where_ = if key == "knee" {
+        format!(
+            "at the output's low edge {}, below the knee, the foldback line folds toward {top_what} and delivers as little as",
+            crate::show::in_unit_digits(output.lo, QuantityKind::VOLTAGE, output.unit.as_deref(), 6)
+        )
+    } else {
+        "in regulation the foldback holds its `at_regulation`, as little as".to_string()
+    };
+    let diag = ctx
+        .at(
+            f,
+            key,
+            format!(
+                "{where_} {low}, {relation} rated {} + {} margin = {need}",
+                in_unit(rated, QuantityKind::CURRENT, unit),
+                percent(d.margin),
+            ),
+        )
+        .primary("the foldback cuts into rated load");
+    out.push(
+        ctx.label(diag, reg, "load", "rated load")
+            .help("raise the foldback's current at regulation, or move its knee below the output's low edge"),
+    );
 }
 
 fn add_contributors(ctx: &Context, mut diag: Diagnostic, window: &Value) -> Diagnostic {

@@ -45,7 +45,7 @@ const WATCHED: &[(BlockKind, &[&str])] = &[
             "trip_current",
         ],
     ),
-    (BlockKind::Foldback, &["current"]),
+    (BlockKind::Foldback, &["at_zero", "at_regulation", "knee"]),
     (BlockKind::ThermalShutdown, &["threshold"]),
 ];
 
