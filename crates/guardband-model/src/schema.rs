@@ -15,6 +15,7 @@ pub enum BlockKind {
     Pass,
     Limit,
     ThermalShutdown,
+    Hiccup,
     Foldback,
     Startup,
     Conductor,
@@ -138,6 +139,7 @@ pub const BLOCKS: &[BlockSpec] = &[
             BlockKind::Pass,
             BlockKind::Limit,
             BlockKind::ThermalShutdown,
+            BlockKind::Hiccup,
             BlockKind::Foldback,
             BlockKind::Startup,
             BlockKind::Conductor,
@@ -426,6 +428,27 @@ pub const BLOCKS: &[BlockSpec] = &[
         ],
     },
     BlockSpec {
+        kind: BlockKind::Hiccup,
+        keyword: "hiccup",
+        named: false,
+        doc: "auto-retry in a sustained overload: the pass device conducts for `on_time`, then is off for `off_time`, and again",
+        children: &[],
+        fields: &[
+            f(
+                "on_time",
+                TIME,
+                "how long it conducts in limit before it turns off",
+            ),
+            f("off_time", TIME, "how long it stays off before it retries"),
+            f(
+                "time_constant",
+                TIME,
+                "thermal time constant of the die and package (one-pole model), for the junction's peak (default: the thermal shutdown's)",
+            ),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
         kind: BlockKind::Foldback,
         keyword: "foldback",
         named: false,
@@ -569,6 +592,7 @@ pub const BLOCKS: &[BlockSpec] = &[
                 FieldType::Ref(&[
                     BlockKind::Limit,
                     BlockKind::ThermalShutdown,
+                    BlockKind::Hiccup,
                     BlockKind::Foldback,
                 ]),
                 "the protection this case exercises",

@@ -35,6 +35,7 @@ pub fn matrix(model: &Model, reg: &Node) -> String {
         BlockKind::Pin,
         BlockKind::Limit,
         BlockKind::ThermalShutdown,
+        BlockKind::Hiccup,
         BlockKind::Foldback,
     ]
     .iter()

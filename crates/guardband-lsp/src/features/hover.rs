@@ -206,7 +206,7 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
         BlockKind::Pin if key.is_none() || key == Some("capacitance") => {
             matches!(r.role, Role::StartupSurge | Role::StartupTime)
         }
-        BlockKind::ThermalShutdown | BlockKind::Foldback => matches!(
+        BlockKind::ThermalShutdown | BlockKind::Hiccup | BlockKind::Foldback => matches!(
             r.role,
             Role::ShortHeat
                 | Role::OverloadHeat

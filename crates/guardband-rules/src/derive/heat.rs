@@ -30,6 +30,8 @@ pub struct Heat {
     pub supply: f64,
     pub ambient: f64,
     pub theta: f64,
+    /// Under a hiccup: the duty cycle, average and swing (the junction above is then its peak).
+    pub pulsed: Option<super::hiccup::Pulsed>,
 }
 
 /// The thermal inputs a regulator states.
@@ -93,6 +95,7 @@ pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<He
             supply: vin,
             ambient: ta,
             theta,
+            pulsed: None,
         }
     });
     let worst = envelope::hottest(&c.upper, vin).map(|(power, v, i, by)| Heat {
@@ -105,6 +108,7 @@ pub fn heat(reg: &Node, currents: &Figure<Currents>) -> (Figure<Heat>, Figure<He
         supply: vin,
         ambient: ta,
         theta,
+        pulsed: None,
     });
     let missing = || super::unknown::Unknown::because("the current is not bounded");
     (short.ok_or_else(missing), worst.ok_or_else(missing))
@@ -153,6 +157,7 @@ pub fn normal(reg: &Node, load: &Figure<Load>) -> Figure<Heat> {
         supply: vin,
         ambient: inp.ambient.1,
         theta: inp.theta.1,
+        pulsed: None,
     })
 }
 
@@ -231,6 +236,11 @@ pub fn cycling(model: &Model, reg: &Node, short: &Figure<Heat>) -> Figure<Option
         return Ok(None);
     }
     let tau = optional(tsd, "time_constant")?.map(|t| t.lo);
+    // Under a hiccup the die heats no faster than with the current steady.
+    let rise = heat
+        .pulsed
+        .as_ref()
+        .map_or(rise, |p| p.steady_junction - heat.ambient);
     let period_min = tau.map(|tau| {
         let x = x_lo.max(h * (1.0 + 1e-12));
         let heating = tau * ((rise - x + h) / (rise - x)).ln();

@@ -11,6 +11,7 @@ pub mod current;
 pub mod envelope;
 pub mod expected;
 pub mod heat;
+pub mod hiccup;
 pub mod load;
 pub mod reverse;
 pub mod startup;
@@ -106,6 +107,8 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         .map_err(Clone::clone)
         .and_then(|c| current::worst_current(model, reg, c));
     let (short, overload) = heat::heat(reg, &currents);
+    let short = hiccup::pulse(model, reg, short);
+    let overload = hiccup::pulse(model, reg, overload);
     let fault_temperature = heat::fault_temperature(model, reg, &overload);
     let cycling = heat::cycling(model, reg, &short);
     // The regulator's load, read once for every figure that needs it.

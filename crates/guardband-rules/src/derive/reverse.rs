@@ -274,6 +274,7 @@ fn diode_heat(model: &Model, reg: &Node, fault: &Node, sides: &Sides) -> Figure<
         supply: sides.input.0,
         ambient,
         theta,
+        pulsed: None,
     })
 }
 

@@ -292,6 +292,29 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
                     theta(h)
                 );
                 r.details.push(format!("the current there is {}", h.reason));
+                if let Some(p) = &h.pulsed {
+                    let steady = p.steady_junction - h.ambient;
+                    let g = if steady > 0.0 {
+                        (h.junction - h.ambient) / steady
+                    } else {
+                        1.0
+                    };
+                    r.basis = format!(
+                        "T_A + (Vin − V)·I·θJA·g = {} + ({} − {}) × {} × {} × {}, g = (1 − e^(−t_on/τ)) / (1 − e^(−(t_on + t_off)/τ)) at the longest on, shortest off and shortest τ",
+                        celsius(h.ambient),
+                        volts(h.supply),
+                        volts(h.at_voltage),
+                        amps(h.current, unit),
+                        theta(h),
+                        crate::show::digits(g, 4)
+                    );
+                    r.value = format!(
+                        "{} peak under the hiccup, at {} dissipated while on",
+                        celsius(h.junction),
+                        in_unit(h.power, QuantityKind::of(Dimension::POWER), None)
+                    );
+                    r.details.push(hiccup_detail(p));
+                }
                 out.push(r);
             }
             Err(u) => out.push(not_derived(reg, &format!("{label}: junction"), u)),
@@ -575,4 +598,23 @@ fn reverse_case_rows(
             out.push(r);
         }
     }
+}
+
+/// The hiccup's effect on a heat row, in words.
+fn hiccup_detail(p: &super::hiccup::Pulsed) -> String {
+    let tau = match p.time_constant {
+        Some(t) => format!(
+            "one-pole model with τ ≥ {}",
+            in_unit(t, QuantityKind::of(Dimension::TIME), None)
+        ),
+        None => "no time constant stated: the peak is taken as the steady junction".to_string(),
+    };
+    format!(
+        "hiccup: duty cycle at most {}, average {} and junction {}; swing up to {} per cycle; {} without it; {tau}",
+        percent(p.duty),
+        in_unit(p.average_power, QuantityKind::of(Dimension::POWER), None),
+        celsius(p.average_junction),
+        in_unit(p.swing, QuantityKind::TEMPERATURE_DIFFERENCE, Some("K")),
+        celsius(p.steady_junction),
+    )
 }

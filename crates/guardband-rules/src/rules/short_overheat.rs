@@ -26,7 +26,9 @@
 //!
 //! ## How to fix
 //! Add a thermal shutdown whose highest trip point is at or below
-//! `junction_max`, add foldback, or lower the limit's top edge.
+//! `junction_max`, add foldback or a hiccup (auto-retry: its peak junction
+//! is used, with no credit for the pauses unless a thermal time constant is
+//! stated), or lower the limit's top edge.
 
 use crate::compare;
 use crate::context::Context;
@@ -78,6 +80,10 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             )
         } else {
             "with the output shorted".to_string()
+        };
+        let place = match &heat.pulsed {
+            Some(_) => format!("{place}, at the peak of its hiccup cycle"),
+            None => place,
         };
         let mut diag = ctx.at(reg,
                 "junction_max",
