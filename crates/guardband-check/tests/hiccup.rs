@@ -111,3 +111,36 @@ fn an_unread_hiccup_leaves_the_heat_unknown() {
     let u = c.derived[0].short.as_ref().expect_err("unknown");
     assert!(u.describe(&c.model).contains("off_time"), "{u:?}");
 }
+
+// The cycle budget under a hiccup: the swing is P·θJA·r at the longest
+// times and the shortest τ; over 20 h the cycles are 72,000 s / (1 + 9) ms
+// = 7.2 million; allowed at the swing ΔT: 10⁶ · (100 K / ΔT)^3 = 3.96 million (Coffin–Manson
+// form, exponent exact), hand calculation from the closed-form swing.
+#[test]
+fn the_cycle_budget_counts_hiccup_cycles_at_their_swing() {
+    let c = check(&spec(
+        "hiccup { on_time = 1 ms  off_time = 9 ms  time_constant = 1 ms }\n    cycle_budget { cycles = 1000000  swing = 100 K  exponent = 3  short_time = 20 h }",
+    ));
+    let dmg = c.derived[0]
+        .cycle_damage
+        .as_ref()
+        .expect("derived")
+        .as_ref()
+        .expect("stated");
+    let m = &dmg.mechanisms[0];
+    let swing = 100.0 * 0.632_071_244_944_358_8; // P·θJA · r, r from the module's unit test
+    assert!((m.swing - swing).abs() < 1e-9, "{}", m.swing);
+    assert!((m.used - 7.2e6).abs() < 1e-3, "{}", m.used);
+    let allowed = 1e6 * (100.0 / swing).powi(3);
+    assert!(
+        (m.allowed - allowed).abs() < 1e-6 * allowed,
+        "{}",
+        m.allowed
+    );
+    assert!((dmg.damage - 7.2e6 / allowed).abs() < 1e-9 && dmg.damage > 1.0);
+    assert!(
+        c.diagnostics
+            .iter()
+            .any(|d| d.rule == "cycle-budget-exceeded")
+    );
+}

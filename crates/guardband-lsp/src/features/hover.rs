@@ -201,7 +201,9 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     let event = node.choice("event");
     let wanted = |r: &Row| match node.kind {
         BlockKind::Regulator => r.node == node.id || r.role == Role::NotDerived,
-        BlockKind::Limit | BlockKind::Conductor | BlockKind::Pass => r.node == node.id,
+        BlockKind::Limit | BlockKind::Conductor | BlockKind::Pass | BlockKind::CycleBudget => {
+            r.node == node.id
+        }
         BlockKind::Startup => matches!(r.role, Role::StartupSurge | Role::StartupTime),
         BlockKind::Pin if key.is_none() || key == Some("capacitance") => {
             matches!(r.role, Role::StartupSurge | Role::StartupTime)
@@ -212,6 +214,7 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
                 | Role::OverloadHeat
                 | Role::RatedLoadHeat
                 | Role::Cycling
+                | Role::CycleDamage
                 | Role::FaultTemperature
                 | Role::ShortCurrent
         ),

@@ -6,6 +6,7 @@
 //! default. The rules read these; hovers and the report show them through
 //! [`view`].
 
+pub mod budget;
 pub mod conductor;
 pub mod current;
 pub mod envelope;
@@ -64,6 +65,8 @@ pub struct Derived {
     pub recovery: Figure<Option<Shortfall>>,
     /// How a sustained short cycles under the thermal shutdown.
     pub cycling: Figure<Option<Cycling>>,
+    /// The thermal-cycle damage against a `cycle_budget`, when one is stated.
+    pub cycle_damage: Figure<Option<budget::CycleDamage>>,
     /// The hottest the die gets in a fault.
     pub fault_temperature: Figure<FaultTemperature>,
     pub startup: Figure<Startup>,
@@ -111,6 +114,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
     let overload = hiccup::pulse(model, reg, overload);
     let fault_temperature = heat::fault_temperature(model, reg, &overload);
     let cycling = heat::cycling(model, reg, &short);
+    let cycle_damage = budget::damage(model, reg, &cycling, &short);
     // The regulator's load, read once for every figure that needs it.
     let reg_load = Load::need(reg, "load");
     let startup = startup::startup(model, reg, &currents, &reg_load);
@@ -154,6 +158,7 @@ pub fn derive(model: &Model, reg: &Node, options: &Options) -> Derived {
         overload,
         fault_temperature,
         cycling,
+        cycle_damage,
         startup,
         reverse_cases,
         conductors,

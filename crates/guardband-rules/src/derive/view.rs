@@ -26,6 +26,7 @@ pub enum Role {
     RatedLoadHeat,
     Recovery,
     Cycling,
+    CycleDamage,
     FaultTemperature,
     StartupSurge,
     StartupTime,
@@ -386,6 +387,42 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         let mut r = row(reg, Role::Cycling, "cycling in a sustained short", value);
         r.basis = "between the trip point and trip − hysteresis; one-pole thermal model, each term at its least corner".to_string();
         out.push(r);
+    }
+    match &d.cycle_damage {
+        Ok(Some(dmg)) => {
+            let mut r = row(
+                dmg.budget,
+                Role::CycleDamage,
+                "thermal-cycle damage in sustained shorts",
+                format!(
+                    "{} over {} (fails at 1)",
+                    crate::show::digits(dmg.damage, 3),
+                    in_unit(dmg.short_time, QuantityKind::of(Dimension::TIME), Some("h"))
+                ),
+            );
+            r.basis = "Σ cycles used / N(ΔT), N(ΔT) = cycles · (swing / ΔT)^exponent (Coffin–Manson form, Miner's rule), each at its unfavourable end".into();
+            for m in &dmg.mechanisms {
+                r.details.push(format!(
+                    "{}: {} swing, period at least {}: up to {} cycles, {} allowed",
+                    m.what,
+                    in_unit(m.swing, QuantityKind::TEMPERATURE_DIFFERENCE, Some("K")),
+                    in_unit(m.period, QuantityKind::of(Dimension::TIME), None),
+                    crate::show::number(m.used.ceil()),
+                    crate::show::number(m.allowed.floor())
+                ));
+            }
+            out.push(r);
+        }
+        Ok(None) => {}
+        Err(u) => {
+            if let Some(b) = model.child(model.node(reg), guardband_model::BlockKind::CycleBudget) {
+                out.push(not_derived(
+                    b.id,
+                    "thermal-cycle damage in sustained shorts",
+                    u,
+                ));
+            }
+        }
     }
     match &d.fault_temperature {
         Ok(t) => {

@@ -73,6 +73,12 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
             figures.push(("startup", u));
         }
         push(ctx, out, reg, &figures);
+        if let (Err(u), Some(b)) = (
+            &d.cycle_damage,
+            ctx.model.child(reg, BlockKind::CycleBudget),
+        ) {
+            push(ctx, out, b, &[("cycle damage", u)]);
+        }
         for (id, short) in &d.reverse_cases {
             let fault = ctx.node(*id);
             let figures: Vec<(&str, &Unknown)> = match short {

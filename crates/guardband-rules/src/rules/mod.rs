@@ -44,6 +44,8 @@ crate::registry::declare_rules! {
         "a least delivered current that does not clear the load line from 0 V to regulation";
     reverse_current_overstress: "reverse-current-overstress", Some(Severity::Error),
         "a reverse current in a short to supply above the pass device's or a conductor's rating";
+    cycle_budget_exceeded: "cycle-budget-exceeded", Some(Severity::Error),
+        "sustained shorts that cycle the junction more than the cycle budget allows";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }
