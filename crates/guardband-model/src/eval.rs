@@ -231,6 +231,37 @@ impl<'a> Evaluator<'a> {
                 v.tighten();
                 self.fit(file, expr, v, &[kind]).map(FieldValue::Quantity)
             }
+            FieldType::Source => {
+                // A bare name of a `supply` item: its voltage, and the link.
+                if let ExprKind::Path(p) = &expr.kind
+                    && let Some(Target::Node(n)) = self.resolve_quiet(node, p)
+                    && self.model.node(n).kind == BlockKind::Supply
+                {
+                    let item = self.model.node(n);
+                    let Some(i) = item.fields.iter().position(|f| f.key == "voltage") else {
+                        let d = Diagnostic::error(
+                            "invalid-value",
+                            file,
+                            expr.span.clone(),
+                            format!("supply `{}` states no `voltage`", item.key()),
+                        )
+                        .primary("no voltage to take")
+                        .help("give the supply item a `voltage` range");
+                        self.push(d);
+                        return None;
+                    };
+                    return match self.field(n, i)? {
+                        FieldValue::Quantity(value) => {
+                            Some(FieldValue::Sourced { value, source: n })
+                        }
+                        _ => None,
+                    };
+                }
+                let mut v = self.quantity(node, expr, key)?;
+                v.tighten();
+                self.fit(file, expr, v, &[QuantityKind::VOLTAGE])
+                    .map(FieldValue::Quantity)
+            }
             FieldType::AnyOf(kinds) => {
                 let mut v = self.quantity(node, expr, key)?;
                 v.tighten();

@@ -19,6 +19,12 @@ pub enum FieldValue {
     Choice(CompactString),
     /// A reference to another block.
     Ref(NodeId),
+    /// A quantity taken from another block: `supply = battery` is the
+    /// `voltage` of the `supply` item `battery`.
+    Sourced {
+        value: Value,
+        source: NodeId,
+    },
     /// A circuit node: a block, and a terminal of it (`pass.gate`) when named.
     Node {
         node: NodeId,
@@ -48,7 +54,7 @@ impl Field {
     /// The quantity, if this field holds one.
     pub fn quantity(&self) -> Option<&Value> {
         match &self.value {
-            Some(FieldValue::Quantity(v)) => Some(v),
+            Some(FieldValue::Quantity(v) | FieldValue::Sourced { value: v, .. }) => Some(v),
             _ => None,
         }
     }
@@ -121,7 +127,7 @@ impl Node {
     /// The block a reference field names.
     pub fn reference(&self, key: &str) -> Option<NodeId> {
         match self.field(key).and_then(|f| f.value.as_ref()) {
-            Some(FieldValue::Ref(n)) => Some(*n),
+            Some(FieldValue::Ref(n) | FieldValue::Sourced { source: n, .. }) => Some(*n),
             _ => None,
         }
     }

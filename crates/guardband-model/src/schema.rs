@@ -8,6 +8,7 @@ use guardband_units::{Dimension, QuantityKind};
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum BlockKind {
     Regulator,
+    Supply,
     Process,
     Metal,
     BondWire,
@@ -42,6 +43,8 @@ pub enum FieldType {
     Ref(&'static [BlockKind]),
     /// A circuit node: a pin, or a terminal of the pass device or of a limit (`pass.gate`).
     Node,
+    /// A voltage, or the name of a `supply` item (whose `voltage` it then is).
+    Source,
     /// A quoted string.
     Text,
 }
@@ -131,6 +134,38 @@ pub const EVENTS: &[&str] = &[
 /// Every block kind the language knows.
 pub const BLOCKS: &[BlockSpec] = &[
     BlockSpec {
+        kind: BlockKind::Supply,
+        keyword: "supply",
+        named: true,
+        doc: "an input rail several regulators draw from (`supply = NAME` in each): its source and what loads on it tolerate",
+        children: &[],
+        fields: &[
+            f("voltage", VOLTAGE, "the source's voltage range, unloaded"),
+            f(
+                "resistance",
+                q(Dimension::RESISTANCE),
+                "the source's resistance, with its wiring",
+            ),
+            f(
+                "inductance",
+                q(Dimension::INDUCTANCE),
+                "the wiring's inductance (write `0 H` to neglect it)",
+            ),
+            f(
+                "rise_time",
+                TIME,
+                "the fastest the rail's load current can rise, for L·di/dt",
+            ),
+            f("current_limit", CURRENT, "the most the source delivers"),
+            f(
+                "lockout",
+                VOLTAGE,
+                "undervoltage lockout of the loads on this rail: a droop below it resets them",
+            ),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
         kind: BlockKind::Regulator,
         keyword: "regulator",
         named: true,
@@ -149,7 +184,11 @@ pub const BLOCKS: &[BlockSpec] = &[
             BlockKind::Analysis,
         ],
         fields: &[
-            f("supply", VOLTAGE, "input supply range"),
+            f(
+                "supply",
+                FieldType::Source,
+                "input supply range, or the name of a `supply` item it draws from",
+            ),
             f(
                 "output",
                 VOLTAGE,
@@ -711,7 +750,7 @@ pub fn block_spec(kind: BlockKind) -> &'static BlockSpec {
 /// The spec of a block keyword allowed inside `parent` (or at top level for `None`).
 pub fn child_spec(parent: Option<BlockKind>, keyword: &str) -> Option<&'static BlockSpec> {
     let allowed: &[BlockKind] = match parent {
-        None => &[BlockKind::Regulator, BlockKind::Process],
+        None => &[BlockKind::Regulator, BlockKind::Process, BlockKind::Supply],
         Some(p) => block_spec(p).children,
     };
     allowed
@@ -753,6 +792,7 @@ impl FieldType {
                 .collect::<Vec<_>>()
                 .join(" or "),
             FieldType::Bool => "`true` or `false`".to_string(),
+            FieldType::Source => "a voltage (V), or the name of a supply".to_string(),
             FieldType::Choice(options) => format!(
                 "one of {}",
                 options

@@ -168,6 +168,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         md.push('\n');
         charts.push((reg.key().to_string(), chart::chart(&f).to_string()));
     }
+    power_tree(checked, &mut md);
     waivers(ws, &mut md);
     let elsewhere: Vec<_> = checked
         .diagnostics
@@ -185,4 +186,31 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         }
     }
     (md, charts)
+}
+
+/// The shared supplies, what draws from each and how far each droops when
+/// its regulators start together.
+fn power_tree(checked: &Checked, md: &mut String) {
+    let model = &checked.model;
+    let rails = guardband_rules::derive::rail::rails(model, &checked.derived);
+    if rails.is_empty() {
+        return;
+    }
+    let _ = writeln!(
+        md,
+        "## Power tree\n\n| supply | regulators (startup surge) | all starting together | how |\n|---|---|---|---|"
+    );
+    for rail in &rails {
+        for row in guardband_rules::derive::view::rail_rows(model, rail) {
+            let _ = writeln!(
+                md,
+                "| `{}` | {} | {} | {} |",
+                model.node(rail.supply).key(),
+                row.details.join("; ").replace('|', "\\|"),
+                row.value.replace('|', "\\|"),
+                row.basis.replace('|', "\\|")
+            );
+        }
+    }
+    md.push('\n');
 }

@@ -114,7 +114,7 @@ pub fn in_unit_digits(si: f64, kind: QuantityKind, unit: Option<&str>, d: i32) -
         return format!("{} °C", number(si - 273.15));
     }
     let symbol = kind.si_symbol();
-    let prefixable = ["A", "V", "W", "F", "s", "m", "Ω", "J"].contains(&symbol.as_str());
+    let prefixable = ["A", "V", "W", "F", "H", "s", "m", "Ω", "J"].contains(&symbol.as_str());
     if !prefixable {
         return if symbol == "1" {
             number(si)

@@ -306,6 +306,7 @@ fn top_level() -> Vec<CompletionItem> {
     }];
     out.push(block_item(BlockKind::Regulator));
     out.push(block_item(BlockKind::Process));
+    out.push(block_item(BlockKind::Supply));
     out
 }
 

@@ -94,6 +94,20 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
                 Some(FieldValue::Ref(target)) => {
                     let _ = writeln!(out, "names `{}`", model.node(*target).path);
                 }
+                Some(FieldValue::Sourced { value: v, source }) => {
+                    let _ = writeln!(
+                        out,
+                        "drawn from supply `{}`: its `voltage`\n",
+                        model.node(*source).path
+                    );
+                    self::value(
+                        model,
+                        &analysis.checked.ws,
+                        v,
+                        &analysis.checked.config.options,
+                        out,
+                    );
+                }
                 Some(FieldValue::Node { node, terminal }) => {
                     let _ = writeln!(
                         out,
@@ -193,6 +207,15 @@ fn show_delta(delta: f64, v: &Value) -> String {
 /// The derived rows that belong with `node` (or its field `key`).
 fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut String) {
     let model = &analysis.checked.model;
+    if node.kind == BlockKind::Supply {
+        let rails = guardband_rules::derive::rail::rails(model, &analysis.checked.derived);
+        let rows: Vec<Row> = rails
+            .iter()
+            .filter(|r| r.supply == node.id)
+            .flat_map(|r| view::rail_rows(model, r))
+            .collect();
+        return write_rows(&rows.iter().collect::<Vec<_>>(), out);
+    }
     let regulator = model.item_of(node.id);
     let Some(derived) = analysis.checked.derived_for(regulator.id) else {
         return;
@@ -233,6 +256,11 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
         _ => false,
     };
     let chosen: Vec<&Row> = rows.iter().filter(|r| wanted(r)).collect();
+    write_rows(&chosen, out);
+}
+
+/// Derived rows as a hover's list.
+fn write_rows(chosen: &[&Row], out: &mut String) {
     if chosen.is_empty() {
         return;
     }

@@ -10,6 +10,7 @@ fn kind_of(kind: BlockKind) -> SymbolKind {
     match kind {
         BlockKind::Regulator => SymbolKind::CLASS,
         BlockKind::Process => SymbolKind::NAMESPACE,
+        BlockKind::Supply => SymbolKind::PACKAGE,
         BlockKind::Fault => SymbolKind::EVENT,
         BlockKind::Analysis => SymbolKind::FUNCTION,
         BlockKind::Pin => SymbolKind::INTERFACE,

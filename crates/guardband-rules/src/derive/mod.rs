@@ -14,6 +14,7 @@ pub mod expected;
 pub mod heat;
 pub mod hiccup;
 pub mod load;
+pub mod rail;
 pub mod reverse;
 pub mod startup;
 pub mod statistics;

@@ -32,6 +32,8 @@ pub enum Role {
     StartupTime,
     ReverseCase,
     ConductorRating,
+    /// A shared supply's droop (rows of a `supply` item, from [`rail_rows`]).
+    Rail,
     NotDerived,
 }
 
@@ -654,4 +656,60 @@ fn hiccup_detail(p: &super::hiccup::Pulsed) -> String {
         in_unit(p.swing, QuantityKind::TEMPERATURE_DIFFERENCE, Some("K")),
         celsius(p.steady_junction),
     )
+}
+
+/// The rows of a shared `supply` item: what each regulator draws at startup
+/// and how far the rail droops when they start together.
+pub fn rail_rows(model: &Model, rail: &super::rail::Rail) -> Vec<Row> {
+    let name = model.node(rail.supply).key();
+    let mut r = row(
+        rail.supply,
+        Role::Rail,
+        format!("`{name}` with every regulator starting together"),
+        String::new(),
+    );
+    match &rail.droop {
+        Ok(d) => {
+            r.value = format!(
+                "droops to {} ({} below its lowest {})",
+                volts(d.lowest),
+                volts(d.resistive + d.inductive),
+                volts(d.source_lo)
+            );
+            r.current = Some((0.0, d.current));
+            r.basis = match d.rise_time {
+                Some(t) => format!(
+                    "I·R + L·I/t_rise = {} × {} + {} × {} / {}",
+                    amps(d.current, None),
+                    in_unit(d.resistance, QuantityKind::of(Dimension::RESISTANCE), None),
+                    in_unit(d.inductance, QuantityKind::of(Dimension::INDUCTANCE), None),
+                    amps(d.current, None),
+                    in_unit(t, QuantityKind::of(Dimension::TIME), None)
+                ),
+                None => format!(
+                    "I·R = {} × {}",
+                    amps(d.current, None),
+                    in_unit(d.resistance, QuantityKind::of(Dimension::RESISTANCE), None)
+                ),
+            };
+        }
+        Err(u) => {
+            r.role = Role::NotDerived;
+            r.value = format!("not derived: {}", u.describe(model));
+        }
+    }
+    for (reg, surge) in &rail.drawers {
+        r.details.push(match surge {
+            Ok(i) => format!(
+                "`{}` draws up to {} at startup",
+                model.node(*reg).key(),
+                amps(*i, None)
+            ),
+            Err(_) => format!("`{}`: startup surge not derived", model.node(*reg).key()),
+        });
+    }
+    if rail.drawers.is_empty() {
+        r.details.push("no regulator draws from it".into());
+    }
+    vec![r]
 }

@@ -7,7 +7,8 @@
 //! Heat is reported when the spec asks for it (a junction limit, a thermal
 //! shutdown, θJA or a junction expectation; heat at rated load, which
 //! needs `quiescent`, with a junction limit or a thermal shutdown), startup when it has a
-//! `startup` block or a startup fault case; for a `short_to_supply` or
+//! `startup` block or a startup fault case; a shared supply's droop when
+//! regulators draw from it; for a `short_to_supply` or
 //! `reverse_current` fault
 //! case, its reverse current (and its heat when it expects a junction).
 //!
@@ -38,6 +39,11 @@ use crate::derive::Unknown;
 use guardband_model::{BlockKind, Diagnostic, Node};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
+    for rail in crate::derive::rail::rails(ctx.model, ctx.derived) {
+        if let (Err(u), false) = (&rail.droop, rail.drawers.is_empty()) {
+            push(ctx, out, ctx.node(rail.supply), &[("rail droop", u)]);
+        }
+    }
     for d in ctx.derived {
         let reg = ctx.node(d.regulator);
         for lw in &d.limits {
