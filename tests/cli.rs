@@ -16,7 +16,7 @@ fn examples_show_each_rule_where_documented() {
     assert!(
         run.stdout
             .trim_end()
-            .ends_with("18 errors, 6 warnings, 3 infos in 8 files"),
+            .ends_with("20 errors, 6 warnings, 3 infos in 10 files"),
         "{}",
         run.stdout
     );
@@ -50,6 +50,8 @@ fn examples_show_each_rule_where_documented() {
         ("rated-load-overheat", "flawed/heater_rail.guard"),
         ("reverse-current-overstress", "flawed/heater_rail.guard"),
         ("expectation-unchecked", "flawed/heater_rail.guard"),
+        ("rail-droop", "flawed/ir_pack.guard"),
+        ("cycle-budget-exceeded", "flawed/lamp_rail.guard"),
     ];
     for d in report["diagnostics"].as_array().unwrap() {
         let rule = d["rule"].as_str().unwrap();
@@ -82,7 +84,7 @@ fn clean_examples_pass() {
     );
     assert_eq!(run.code, 0, "{}", run.stdout);
     assert!(
-        run.stdout.contains("0 errors, 0 warnings in 3 files"),
+        run.stdout.contains("0 errors, 0 warnings in 4 files"),
         "{}",
         run.stdout
     );

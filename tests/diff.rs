@@ -77,7 +77,7 @@ fn the_markdown_comment_lists_what_moved() {
     assert!(md.contains("### Resolved findings\n\n- **info** `tolerance-missing` in flawed/aux_rail.guard at line 8"), "{md}");
     assert!(md.contains("### Reworded findings"), "{md}");
     assert!(
-        md.contains("### Waivers changed\n\n- flawed/lamp_rail.guard at line 13: waives `tolerance-missing`: board-level figure, re-measured on the second build\n  (was: board-level figure from the module maker's thermal report)"),
+        md.contains("### Waivers changed\n\n- flawed/lamp_rail.guard at line 14: waives `tolerance-missing`: board-level figure, re-measured on the second build\n  (was: board-level figure from the module maker's thermal report)"),
         "{md}"
     );
     // Regulators that did not move are not listed.

@@ -3,7 +3,11 @@
 //! checks one open file; its findings are kept and everything else (syntax
 //! trees, model, derivations) is dropped before the next file starts.
 //!
-//! The result is the union of those single-file checks. It equals one
+//! Entries whose regulators draw from the same `supply` item are checked
+//! again together, as one unit: a shared rail's droop adds up the surges of
+//! every regulator on it, which no single file sees.
+//!
+//! The result is the union of those checks. It equals one
 //! [`crate::check_workspace`] of all the entries (a test holds the two
 //! together on every example and fixture), except where the whole-workspace
 //! check depends on the order files were loaded in: the import-depth and
@@ -47,6 +51,8 @@ struct Unit {
     diagnostics: Vec<Diagnostic>,
     config: Config,
     guard_files: Vec<PathBuf>,
+    /// The `supply` items its regulators draw from: their file and name.
+    supplies: Vec<(PathBuf, String)>,
 }
 
 /// Checks every entry file on its own (with its imports) on `threads`
@@ -78,12 +84,70 @@ pub fn check_each(
             Err(_) => entries.iter().map(one).collect(),
         }
     };
+    let mut units = units.into_iter().collect::<Result<Vec<Unit>, _>>()?;
+    // Entries on a shared supply are checked once more, together, and
+    // their single-file units (with partial droops) are dropped.
+    if !entries.is_empty() {
+        let groups = shared_supply_groups(&units);
+        let mut dropped = vec![false; units.len()];
+        let mut together = Vec::new();
+        for group in groups {
+            let group_entries: Vec<PathBuf> = group.iter().map(|i| entries[*i].clone()).collect();
+            together.push(check_one(root, &group_entries, read, config_file)?);
+            for i in group {
+                dropped[i] = true;
+            }
+        }
+        units = units
+            .into_iter()
+            .zip(dropped)
+            .filter(|(_, d)| !d)
+            .map(|(u, _)| u)
+            .chain(together)
+            .collect();
+    }
     let mut merged = Merged::default();
     let mut config = None;
     for unit in units {
-        merged.add(unit?, &mut config);
+        merged.add(unit, &mut config);
     }
     Ok(merged.finish(root, config.unwrap_or_default()))
+}
+
+/// The entries (by index) that share a `supply` item with another entry,
+/// in groups joined through any supply they have in common.
+fn shared_supply_groups(units: &[Unit]) -> Vec<Vec<usize>> {
+    // Union-find over the units, joined by each supply's first user.
+    let mut parent: Vec<usize> = (0..units.len()).collect();
+    fn root(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    let mut first: HashMap<&(PathBuf, String), usize> = HashMap::new();
+    for (i, unit) in units.iter().enumerate() {
+        for s in &unit.supplies {
+            match first.get(s) {
+                Some(&j) => {
+                    let (a, b) = (root(&mut parent, i), root(&mut parent, j));
+                    parent[a] = b;
+                }
+                None => {
+                    first.insert(s, i);
+                }
+            }
+        }
+    }
+    let mut groups: HashMap<usize, Vec<usize>> = HashMap::new();
+    for i in 0..units.len() {
+        let r = root(&mut parent, i);
+        groups.entry(r).or_default().push(i);
+    }
+    let mut out: Vec<Vec<usize>> = groups.into_values().filter(|g| g.len() > 1).collect();
+    out.sort();
+    out
 }
 
 /// Checks one entry (or none: the configuration alone) and keeps only the
@@ -95,6 +159,15 @@ fn check_one(
     config_file: &ConfigFile,
 ) -> Result<Unit, (PathBuf, std::io::Error)> {
     let checked = check_with_config_file(root, entries, read, config_file)?;
+    let supplies = checked
+        .model
+        .regulators()
+        .filter_map(|r| r.reference("supply"))
+        .map(|s| {
+            let s = checked.model.node(s);
+            (checked.ws.file(s.file).path.clone(), s.key().to_string())
+        })
+        .collect();
     // Every file read as a spec, whatever its name (not guardband.toml).
     let guard_files = checked
         .ws
@@ -131,6 +204,7 @@ fn check_one(
         diagnostics: checked.diagnostics,
         config: checked.config,
         guard_files,
+        supplies,
     })
 }
 
@@ -150,6 +224,7 @@ impl Merged {
             mut diagnostics,
             config: unit_config,
             guard_files,
+            supplies: _,
         } = unit;
         // The unit's file ids in the merged list (only kept files are ever looked up).
         let ids: Vec<FileId> = files
