@@ -83,10 +83,38 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
     assert!(aux.contains("**error** `conductor-under-rated`"), "{aux}");
     assert!(
         aux.contains(
-            "| conductor `pass_source` rating | 37.7 mA against the worst current 208 mA (short by 81.9 %) |"
+            "| conductor `pass_source` rating | ✗ 37.7 mA against the worst current 208 mA (short by 81.9 %) |"
         ),
         "{aux}"
     );
+    // Failing comparisons are marked in words, not by colour alone.
+    assert!(
+        aux.contains(
+            "| `sensed` limit window, worst case | ✗ 118 mA .. 208 mA (cuts into margin) |"
+        ),
+        "{aux}"
+    );
+    let aux_svg = std::fs::read_to_string(out.join("aux_rail.svg")).expect("svg");
+    assert!(
+        aux_svg.contains(r#"data-fails="below worst current""#),
+        "{aux_svg}"
+    );
+    assert!(
+        aux_svg.contains("✗ 37.7 mA (below worst current)"),
+        "{aux_svg}"
+    );
+    // The undervoltage-triggered scheme's trip window is drawn; its fixed
+    // current may sit below the load and is not marked.
+    let radio_svg = std::fs::read_to_string(out.join("radio_rail.svg")).expect("svg");
+    assert!(
+        radio_svg.contains(r#"data-role="trip-current""#),
+        "{radio_svg}"
+    );
+    assert!(
+        radio_svg.contains(r#"data-role="fixed-current""#),
+        "{radio_svg}"
+    );
+    assert!(!radio_svg.contains("data-fails"), "{radio_svg}");
     let sensor = summary
         .split("## Regulator `sensor_rail`")
         .nth(1)
@@ -230,5 +258,43 @@ fn a_spec_built_to_cross_draws_its_bars_in_order_and_where_they_cross() {
     assert!(
         (x - right("limit-worst-case")).abs() < 0.5,
         "and sits at the window's top"
+    );
+}
+
+/// A report of a spec with a syntax error (`3 V +` runs on into the next
+/// line, so the error is at its `=`) is written, but the command
+/// fails and names the first error, so CI does not publish it as clean.
+#[test]
+fn a_report_on_a_syntax_error_fails_and_says_where() {
+    let dir = temp_dir("report-syntax");
+    std::fs::write(
+        dir.join("broken.guard"),
+        "regulator r {\n    supply = 3 V +\n    output = 1.8 V ± 2 %\n}\n",
+    )
+    .unwrap();
+    let run = guardband(&dir, &["report", "--out", "out", "broken.guard"]);
+    assert_eq!(run.code, 1, "{}", run.stderr);
+    assert!(
+        run.stderr
+            .contains("1 syntax error (the first in broken.guard at line 3: unexpected `=`"),
+        "{}",
+        run.stderr
+    );
+    assert!(dir.join("out/summary.md").exists());
+}
+
+/// An unrated conductor is listed with the reason it has no rating.
+#[test]
+fn an_unrated_conductor_is_listed_with_its_reason() {
+    let out = temp_dir("report-unrated");
+    let summary = report(
+        &["tests/fixtures/rules/conductor-under-rated/fail_gold_wire.guard"],
+        &out,
+    );
+    assert!(
+        summary.contains(
+            "| conductor `bond` rating | not derived: Preece's formula has no constant for gold"
+        ),
+        "{summary}"
     );
 }

@@ -336,6 +336,26 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
             for path in written {
                 print_line(&format!("wrote {}", path.display()));
             }
+            // A report of a spec that does not parse leaves out what could
+            // not be read: say so, and fail.
+            let syntax: Vec<_> = checked
+                .diagnostics
+                .iter()
+                .filter(|d| d.rule == "syntax")
+                .collect();
+            if let Some(first) = syntax.first() {
+                let file = checked.ws.file(first.file);
+                let at = file.line_index.line_col(first.span.start);
+                eprintln!(
+                    "guardband: {} syntax error{} (the first in {} at line {}: {}); the report covers only what could be read (see `guardband check`)",
+                    syntax.len(),
+                    if syntax.len() == 1 { "" } else { "s" },
+                    file.display,
+                    at.line + 1,
+                    first.message
+                );
+                return ExitCode::from(1);
+            }
             ExitCode::SUCCESS
         }
         Err(e) => {

@@ -16,7 +16,8 @@ pub fn base(cwd: &Path) -> PathBuf {
         .unwrap_or(cwd)
 }
 
-/// `path` relative to `base` with `/` separators, when it lies inside it.
+/// `path` relative to `base`, when it lies inside it (separators as the
+/// platform writes them; [`annotation_path`] turns them into `/`).
 pub fn relative(base: &Path, path: &Path) -> Option<PathBuf> {
     path.strip_prefix(base).ok().map(Path::to_path_buf)
 }

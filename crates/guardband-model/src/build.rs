@@ -25,8 +25,10 @@ pub fn build(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Model {
                         block.keyword.span.clone(),
                         format!("unknown item `{}`", block.keyword.text),
                     )
-                    .primary("expected `regulator` or `process`");
-                    if let Some(s) = did_you_mean(&block.keyword.text, ["regulator", "process"]) {
+                    .primary("expected `regulator`, `process` or `supply`");
+                    if let Some(s) =
+                        did_you_mean(&block.keyword.text, ["regulator", "process", "supply"])
+                    {
                         d = d.help(format!("did you mean `{s}`?"));
                     }
                     diagnostics.push(d);

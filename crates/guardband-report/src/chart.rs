@@ -8,9 +8,9 @@ use crate::figures::{BarKind, Figures};
 use svg::Document;
 use svg::node::element::{Definitions, Line, Path, Pattern, Rectangle, Text, Title};
 
-const WIDTH: f64 = 820.0;
+const WIDTH: f64 = 920.0;
 const LABEL_WIDTH: f64 = 250.0;
-const VALUE_WIDTH: f64 = 150.0;
+const VALUE_WIDTH: f64 = 250.0;
 const ROW: f64 = 30.0;
 const TOP: f64 = 56.0;
 const BOTTOM: f64 = 64.0;
@@ -24,6 +24,8 @@ fn colour(kind: BarKind) -> &'static str {
         BarKind::Statistical => "#E69F00", // orange
         BarKind::Surge => "#CC79A7",       // reddish purple
         BarKind::Rating => "#009E73",      // bluish green
+        BarKind::Trip => "#F0E442",        // yellow
+        BarKind::Fixed => "#D55E00",       // vermillion, as a limit window
     }
 }
 
@@ -172,26 +174,34 @@ pub fn chart(f: &Figures) -> Document {
         } else {
             colour(bar.kind).to_string()
         };
+        // A failing comparison: a cross and the words beside the value,
+        // and a heavy dashed outline.
+        let shown = match bar.fails {
+            Some(why) => format!("✗ {} ({why})", bar.text),
+            None => bar.text.clone(),
+        };
+        let mut rect = Rectangle::new()
+            .set("x", x0)
+            .set("y", y + 5.0)
+            .set("width", (x1 - x0).max(1.5))
+            .set("height", ROW - 10.0)
+            .set("fill", fill)
+            .set("stroke", "#1a1a1a")
+            .set("stroke-width", if bar.fails.is_some() { 2.0 } else { 0.5 })
+            .set("data-role", bar.kind.role())
+            .set("data-lo-amperes", bar.lo)
+            .set("data-hi-amperes", bar.hi)
+            .add(Title::new(format!("{}: {shown}", bar.label)));
+        if let Some(why) = bar.fails {
+            rect = rect.set("stroke-dasharray", "4 2").set("data-fails", why);
+        }
         doc = doc
             .add(text(12.0, y + ROW / 2.0 + 4.0, &bar.label))
-            .add(
-                Rectangle::new()
-                    .set("x", x0)
-                    .set("y", y + 5.0)
-                    .set("width", (x1 - x0).max(1.5))
-                    .set("height", ROW - 10.0)
-                    .set("fill", fill)
-                    .set("stroke", "#1a1a1a")
-                    .set("stroke-width", 0.5)
-                    .set("data-role", bar.kind.role())
-                    .set("data-lo-amperes", bar.lo)
-                    .set("data-hi-amperes", bar.hi)
-                    .add(Title::new(format!("{}: {}", bar.label, bar.text))),
-            )
+            .add(rect)
             .add(text(
                 WIDTH - VALUE_WIDTH + 18.0,
                 y + ROW / 2.0 + 4.0,
-                &bar.text,
+                &shown,
             ));
         if bar.hi * scale > axis_max {
             let tip = plot_left + plot_width;

@@ -465,7 +465,7 @@ pub fn markdown(d: &Diff, before: &str, after: &str) -> String {
     } else {
         let _ = writeln!(
             md,
-            "{} changed; {}, {} resolved, {} reworded; waivers: {} added, {} removed, {} changed.\n",
+            "{} changed, added or removed; {}, {} resolved, {} reworded; waivers: {} added, {} removed, {} changed.\n",
             plural(d.regulators.len(), "regulator"),
             plural(d.new_findings.len(), "new finding"),
             d.resolved_findings.len(),

@@ -26,6 +26,10 @@ pub enum BarKind {
     Statistical,
     Surge,
     Rating,
+    /// An undervoltage-triggered scheme's characterised trip current.
+    Trip,
+    /// An undervoltage-triggered scheme's fixed current (below its threshold).
+    Fixed,
 }
 
 impl BarKind {
@@ -38,6 +42,8 @@ impl BarKind {
             BarKind::Statistical => "limit-statistical",
             BarKind::Surge => "full-gate-current",
             BarKind::Rating => "conductor-rating",
+            BarKind::Trip => "trip-current",
+            BarKind::Fixed => "fixed-current",
         }
     }
 }
@@ -51,6 +57,9 @@ pub struct Bar {
     pub hi: f64,
     /// The range as the table shows it.
     pub text: String,
+    /// Why the comparison this bar stands in fails, when it does: shown in
+    /// words beside the bar and in the table, never by colour alone.
+    pub fails: Option<&'static str>,
 }
 
 /// Everything the report shows for one regulator.
@@ -70,6 +79,9 @@ pub struct Figures {
 pub fn figures(model: &Model, reg: &Node, derived: &Derived, options: &Options) -> Figures {
     let mut rows = Vec::new();
     let mut bars = Vec::new();
+    // The table row each bar was drawn from, and its block.
+    let mut bar_rows = Vec::new();
+    let mut bar_nodes = Vec::new();
     let mut worst = None;
     for r in view::rows(model, derived, options) {
         let mut basis = r.basis.clone();
@@ -91,6 +103,7 @@ pub fn figures(model: &Model, reg: &Node, derived: &Derived, options: &Options) 
             Role::LimitStatistical => Some(BarKind::Statistical),
             Role::FullGate => Some(BarKind::Surge),
             Role::ConductorRating => Some(BarKind::Rating),
+            Role::Trip => Some(BarKind::Trip),
             Role::WorstCurrent => {
                 worst = r.current.map(|(_, hi)| (hi, r.basis.clone()));
                 None
@@ -117,7 +130,33 @@ pub fn figures(model: &Model, reg: &Node, derived: &Derived, options: &Options) 
                 lo,
                 hi,
                 text,
+                fails: None,
             });
+            bar_rows.push(rows.len() - 1);
+            bar_nodes.push(r.node);
+        }
+    }
+    // An undervoltage-triggered scheme's fixed current may sit below the
+    // load (its trip current is what must clear it).
+    let fixed_current = |node| {
+        derived
+            .limit(node)
+            .is_some_and(|l| l.scheme == guardband_rules::derive::Scheme::UndervoltageFixed)
+    };
+    for (bar, &row) in bars.iter_mut().zip(&bar_nodes) {
+        if bar.kind == BarKind::WorstCase && fixed_current(row) {
+            bar.kind = BarKind::Fixed;
+        }
+    }
+    mark_failures(&mut bars, &worst, derived.required());
+    for (bar, row) in bars.iter().zip(bar_rows) {
+        // A rating row already says "short by" in words.
+        match bar.fails {
+            Some(_) if bar.kind == BarKind::Rating => {
+                rows[row].value = format!("✗ {}", rows[row].value);
+            }
+            Some(why) => rows[row].value = format!("✗ {} ({why})", rows[row].value),
+            None => {}
         }
     }
     let focus = bars
@@ -133,5 +172,24 @@ pub fn figures(model: &Model, reg: &Node, derived: &Derived, options: &Options) 
         bars,
         worst,
         unit,
+    }
+}
+
+/// Marks the bars whose comparison fails: a conductor rated below the worst
+/// current, a limit window or trip current whose low edge does not clear
+/// rated load plus margin (the comparisons `guardband_rules::compare` makes).
+fn mark_failures(bars: &mut [Bar], worst: &Option<(f64, String)>, required: Option<f64>) {
+    use guardband_rules::compare;
+    for bar in bars {
+        bar.fails = match bar.kind {
+            BarKind::Rating => worst
+                .as_ref()
+                .filter(|(w, _)| compare::below(bar.hi, *w))
+                .map(|_| "below worst current"),
+            BarKind::WorstCase | BarKind::Trip => required
+                .filter(|r| compare::at_most(bar.lo, *r))
+                .map(|_| "cuts into margin"),
+            _ => None,
+        };
     }
 }
