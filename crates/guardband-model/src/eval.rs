@@ -50,6 +50,8 @@ struct Evaluator<'a> {
     diagnostics: &'a mut Vec<Diagnostic>,
     /// The items each file can name, by file id (items never change during evaluation).
     visible: Vec<Vec<NodeId>>,
+    /// The same, by name (the first of a repeated name wins, as in `visible`'s order).
+    visible_by_key: Vec<rustc_hash::FxHashMap<compact_str::CompactString, NodeId>>,
     /// Each unit spelling met so far, parsed: a file uses a handful of
     /// units thousands of times.
     units: rustc_hash::FxHashMap<compact_str::CompactString, Result<ParsedUnit, UnitError>>,
@@ -70,10 +72,20 @@ pub fn evaluate(
         .iter()
         .map(|n| vec![State::Pending; n.fields.len()])
         .collect();
-    let visible = ws
+    let visible: Vec<Vec<NodeId>> = ws
         .files
         .iter()
         .map(|f| visible_items(ws, model, f.id))
+        .collect();
+    let visible_by_key = visible
+        .iter()
+        .map(|items| {
+            let mut map = rustc_hash::FxHashMap::default();
+            for &i in items {
+                map.entry(model.node(i).key().into()).or_insert(i);
+            }
+            map
+        })
         .collect();
     let mut ev = Evaluator {
         ws,
@@ -82,6 +94,7 @@ pub fn evaluate(
         stack: Vec::new(),
         diagnostics,
         visible,
+        visible_by_key,
         units: Default::default(),
         steps: 0,
         max_steps,
@@ -1077,7 +1090,6 @@ impl<'a> Evaluator<'a> {
             },
             _ => (path, None),
         };
-        let mut candidates = Vec::new();
         let mut scope = Some(from);
         while let Some(s) = scope {
             let node = self.model.node(s);
@@ -1090,6 +1102,27 @@ impl<'a> Evaluator<'a> {
             {
                 return self.descend(s, path, corner, 0, trail);
             }
+            scope = node.parent;
+        }
+        let file = self.model.node(from).file;
+        if let Some(&item) = self.visible_by_key[file.0 as usize].get(path[0].text.as_str()) {
+            trail.push((path[0].span.clone(), Symbol::Node(item)));
+            if path.len() == 1 {
+                return Ok(Target::Node(item));
+            }
+            return self.descend(item, &path[1..], corner, 1, trail);
+        }
+        // Only a name that is not found pays for the list of suggestions.
+        Err((0, self.scope_candidates(from, want_block)))
+    }
+
+    /// Every name visible from `from`, innermost scope first: the "did
+    /// you mean" candidates of a name not found.
+    fn scope_candidates(&self, from: NodeId, want_block: bool) -> Vec<compact_str::CompactString> {
+        let mut candidates = Vec::new();
+        let mut scope = Some(from);
+        while let Some(s) = scope {
+            let node = self.model.node(s);
             if !want_block {
                 candidates.extend(node.fields.iter().map(|f| f.key.clone()));
             }
@@ -1101,18 +1134,12 @@ impl<'a> Evaluator<'a> {
             scope = node.parent;
         }
         let file = self.model.node(from).file;
-        for &item in &self.visible[file.0 as usize] {
-            let n = self.model.node(item);
-            if n.key() == path[0].text {
-                trail.push((path[0].span.clone(), Symbol::Node(item)));
-                if path.len() == 1 {
-                    return Ok(Target::Node(item));
-                }
-                return self.descend(item, &path[1..], corner, 1, trail);
-            }
-            candidates.push(n.key().into());
-        }
-        Err((0, candidates))
+        candidates.extend(
+            self.visible[file.0 as usize]
+                .iter()
+                .map(|&item| self.model.node(item).key().into()),
+        );
+        candidates
     }
 
     /// Follows `path` downward from `node`; `offset` is the index of path[0] in the full path.
