@@ -430,6 +430,10 @@ fn completion_offers_fields_units_names_and_choices() {
     for want in ["ratio", "reference", "mismatch", "scheme"] {
         assert!(fields.contains(&want.to_string()), "{fields:?}");
     }
+    // A replica limit is offered the replica fields, not the other scheme's.
+    for unwanted in ["fixed_current", "threshold_voltage", "trip_current"] {
+        assert!(!fields.contains(&unwanted.to_string()), "{fields:?}");
+    }
     // After `scheme = `: the schemes.
     let choices = labels(&mut client, pos16(&text, "scheme      = replica", 0, 14));
     assert!(
@@ -454,6 +458,27 @@ fn completion_offers_fields_units_names_and_choices() {
     );
     let dotted = labels(&mut client, pos16(&edited, "wren180.top_metal", 0, 8));
     assert!(dotted.contains(&"top_metal".to_string()), "{dotted:?}");
+    // A reference offers only what it may name: after `carries = ` the pass
+    // device, pins and limits; after `layer = ` the process's metals; after
+    // `supply = ` the supply items.
+    let carries = labels(&mut client, pos16(&edited, "carries = pass", 0, 10));
+    for want in ["pass", "vout", "sensed"] {
+        assert!(carries.contains(&want.to_string()), "{carries:?}");
+    }
+    for unwanted in ["ratio", "wren180", "top_metal", "vout_bond"] {
+        assert!(!carries.contains(&unwanted.to_string()), "{carries:?}");
+    }
+    let layer = labels(&mut client, pos16(&edited, "layer   = wren180", 0, 10));
+    assert!(
+        layer.contains(&"wren180.top_metal".to_string()),
+        "{layer:?}"
+    );
+    assert!(!layer.contains(&"pass".to_string()), "{layer:?}");
+    let supply = labels(
+        &mut client,
+        pos16(&edited, "supply       = tern_cell", 0, 15),
+    );
+    assert_eq!(supply, vec!["tern_cell".to_string()], "{supply:?}");
     assert_eq!(client.stop(), Some(0));
 }
 

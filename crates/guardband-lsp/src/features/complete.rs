@@ -43,9 +43,32 @@ pub fn complete(analysis: &Analysis, file: FileId, offset: usize) -> Vec<Complet
         return values(analysis, model, enclosing, spec, typed);
     }
     match enclosing {
-        Some(node) => section(node.kind),
+        Some(node) => section(node),
         None => top_level(),
     }
+}
+
+/// Whether a field belongs with the block's chosen variant: a field whose
+/// documentation opens with variants (`replica: …`, `short_to_supply,
+/// reverse_current: …`) is offered only in a block that chose one of them
+/// (a limit's `scheme`, a fault's `event`), or before it chooses.
+fn applies(node: &Node, doc: &str) -> bool {
+    let (key, options) = match node.kind {
+        BlockKind::Limit => ("scheme", schema::SCHEMES),
+        BlockKind::Fault => ("event", schema::EVENTS),
+        _ => return true,
+    };
+    let Some(chosen) = node.choice(key) else {
+        return true;
+    };
+    let Some((head, _)) = doc.split_once(':') else {
+        return true;
+    };
+    let variants: Vec<&str> = head.split(',').map(str::trim).collect();
+    if !variants.iter().all(|v| options.contains(v)) {
+        return true;
+    }
+    variants.contains(&chosen)
 }
 
 /// After a number (`2.2 u`, `2.2u`, `2.2 `), the unit typed so far.
@@ -123,6 +146,14 @@ fn values(
         .rsplit(|c: char| !(c.is_alphanumeric() || c == '_' || c == '.'))
         .next()
         .unwrap_or("");
+    // A reference: only blocks of the kinds it may name.
+    match spec.map(|s| s.ty) {
+        Some(FieldType::Ref(kinds)) => return references(analysis, model, from, kinds, word),
+        Some(FieldType::Source) => {
+            return references(analysis, model, from, &[BlockKind::Supply], word);
+        }
+        _ => {}
+    }
     let mut out = Vec::new();
     if let Some((head, _)) = word.rsplit_once('.') {
         // A dotted path: list what the block before the last dot holds.
@@ -174,6 +205,68 @@ fn values(
             detail: Some(n.keyword.to_string()),
             ..Default::default()
         });
+    }
+    out.sort_by(|a, b| a.label.cmp(&b.label));
+    out.dedup_by(|a, b| a.label == b.label);
+    out
+}
+
+/// The blocks of `kinds` a reference field can name from `from`: children
+/// of the enclosing blocks, visible items, and (as `item.child`) the
+/// children of visible items, such as a process's metal layers; after a
+/// dot, the children of the block before it.
+fn references(
+    analysis: &Analysis,
+    model: &Model,
+    from: &Node,
+    kinds: &[BlockKind],
+    word: &str,
+) -> Vec<CompletionItem> {
+    let item = |label: String, n: &Node| CompletionItem {
+        label,
+        kind: Some(CompletionItemKind::REFERENCE),
+        detail: Some(n.keyword.to_string()),
+        ..Default::default()
+    };
+    let children = |n: &Node| -> Vec<&Node> {
+        n.children
+            .iter()
+            .map(|c| model.node(*c))
+            .filter(|c| kinds.contains(&c.kind))
+            .collect::<Vec<_>>()
+    };
+    let mut out = Vec::new();
+    if let Some((head, _)) = word.rsplit_once('.') {
+        if let Some(target) = resolve_block(analysis, model, from, head) {
+            out.extend(
+                children(target)
+                    .into_iter()
+                    .map(|c| item(c.key().to_string(), c)),
+            );
+        }
+        return out;
+    }
+    let mut scope = Some(from);
+    while let Some(node) = scope {
+        out.extend(
+            children(node)
+                .into_iter()
+                .map(|c| item(c.key().to_string(), c)),
+        );
+        scope = node.parent.map(|p| model.node(p));
+    }
+    for i in guardband_model::visible_items(&analysis.checked.ws, model, from.file) {
+        let n = model.node(i);
+        if kinds.contains(&n.kind) {
+            out.push(item(n.key().to_string(), n));
+        }
+        if n.kind != BlockKind::Regulator {
+            out.extend(
+                children(n)
+                    .into_iter()
+                    .map(|c| item(format!("{}.{}", n.key(), c.key()), c)),
+            );
+        }
     }
     out.sort_by(|a, b| a.label.cmp(&b.label));
     out.dedup_by(|a, b| a.label == b.label);
@@ -247,11 +340,12 @@ fn placeholder(ty: FieldType) -> String {
 }
 
 /// The fields and blocks a section of this kind may hold.
-fn section(kind: BlockKind) -> Vec<CompletionItem> {
-    let spec = schema::block_spec(kind);
+fn section(node: &Node) -> Vec<CompletionItem> {
+    let spec = schema::block_spec(node.kind);
     let mut out: Vec<CompletionItem> = spec
         .fields
         .iter()
+        .filter(|f| applies(node, f.doc))
         .map(|f| {
             let label = match f.name {
                 Some("*") => format!("{} NAME", f.keyword),
