@@ -406,6 +406,31 @@ fn definition_references_and_rename_across_imports() {
         json!({ "textDocument": doc(&u), "position": pos16(&text, "ratio      ", 0, 1), "newName": "gain" }),
     );
     assert!(field["error"].is_object(), "{field}");
+    // A spread's name is the user's: renaming `trimmed` at its use edits the
+    // use here and the definition in the process file.
+    let spread = client.request(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "wren180.trimmed", 0, 9), "newName": "after_trim" }),
+    );
+    let changes = spread["changes"].as_object().expect("changes");
+    assert_eq!(changes.len(), 2, "{spread}");
+    let process_edits = changes
+        .iter()
+        .find(|(k, _)| k.ends_with("wren180.guard"))
+        .map(|(_, v)| v.as_array().unwrap().len());
+    assert_eq!(process_edits, Some(1), "{spread}");
+    // It clashes with the process's other spread.
+    let taken = client.request_full(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "wren180.trimmed", 0, 9), "newName": "resistor" }),
+    );
+    assert!(
+        taken["error"]["message"]
+            .as_str()
+            .unwrap_or("")
+            .contains("already has a field `resistor`"),
+        "{taken}"
+    );
     assert_eq!(client.stop(), Some(0));
 }
 

@@ -1,9 +1,10 @@
 //! Go to definition, find references and rename, across `use` imports.
 //!
 //! Field keys are the schema's keywords, and blocks without a name are
-//! known by their keyword (`pass`, `startup`), so only named blocks can be
-//! renamed; a new name must be a plain identifier that no other block or
-//! field in scope already uses.
+//! known by their keyword (`pass`, `startup`), so only the names a user
+//! chose can be renamed: named blocks, and the name of a `spread NAME`; a
+//! new name must be a plain identifier that no other block or field in
+//! scope already uses.
 
 use super::locate;
 use crate::encoding::Encoding;
@@ -126,9 +127,13 @@ pub fn prepare_rename(
     Some(PrepareRenameResponse::Range(encoding.range(index, &span)))
 }
 
+/// The block a renamed name lives in (the block itself, or the block
+/// holding a renamed field), or why the name cannot be renamed.
 fn renamable(analysis: &Analysis, symbol: Symbol) -> Result<&Node, String> {
     let model = &analysis.checked.model;
     match symbol {
+        // A spread's name is the user's; other field keys are the language's.
+        Symbol::Field(n, i) if model.node(n).fields[i].keyword == "spread" => Ok(model.node(n)),
         Symbol::Field(n, i) => Err(format!(
             "`{}` is a field of the language, not a name of yours",
             model.node(n).fields[i].key
@@ -173,10 +178,15 @@ pub fn rename(
             "`{new_name}` is not a valid name (letters, digits and `_`, not starting with a digit)"
         ));
     }
-    if new_name == node.key() {
+    let model = &analysis.checked.model;
+    if new_name == model.symbol_name(symbol) {
         return Ok(Some(WorkspaceEdit::default()));
     }
-    if let Some(clash) = clash(analysis, node, new_name) {
+    let clash = match symbol {
+        Symbol::Field(..) => within(analysis, node, new_name),
+        Symbol::Node(_) => clash(analysis, node, new_name),
+    };
+    if let Some(clash) = clash {
         return Err(clash);
     }
     let model = &analysis.checked.model;
@@ -205,26 +215,7 @@ pub fn rename(
 fn clash(analysis: &Analysis, node: &Node, new_name: &str) -> Option<String> {
     let model = &analysis.checked.model;
     match node.parent {
-        Some(p) => {
-            let parent = model.node(p);
-            if parent.fields.iter().any(|f| f.key == new_name) {
-                return Some(format!(
-                    "`{}` already has a field `{new_name}`",
-                    parent.path
-                ));
-            }
-            if parent
-                .children
-                .iter()
-                .any(|c| model.node(*c).key() == new_name)
-            {
-                return Some(format!(
-                    "`{}` already has a block named `{new_name}`",
-                    parent.path
-                ));
-            }
-            None
-        }
+        Some(p) => within(analysis, model.node(p), new_name),
         None => model
             .items
             .iter()
@@ -238,4 +229,26 @@ fn clash(analysis: &Analysis, node: &Node, new_name: &str) -> Option<String> {
                 )
             }),
     }
+}
+
+/// Why `new_name` is taken inside `parent`: by a field or a block.
+fn within(analysis: &Analysis, parent: &Node, new_name: &str) -> Option<String> {
+    let model = &analysis.checked.model;
+    if parent.fields.iter().any(|f| f.key == new_name) {
+        return Some(format!(
+            "`{}` already has a field `{new_name}`",
+            parent.path
+        ));
+    }
+    if parent
+        .children
+        .iter()
+        .any(|c| model.node(*c).key() == new_name)
+    {
+        return Some(format!(
+            "`{}` already has a block named `{new_name}`",
+            parent.path
+        ));
+    }
+    None
 }
