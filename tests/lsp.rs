@@ -255,6 +255,27 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
             "conductor hover lacks `{want}`:\n{conductor}"
         );
     }
+    // The conductor names the inputs of its Black's-equation factor.
+    assert!(
+        conductor.contains("activation energy") && conductor.contains("reference temperature"),
+        "{conductor}"
+    );
+    // A metal layer shows its data and every conductor that uses it.
+    let metal = hover(&mut client, pos16(&text, "wren180.top_metal", 0, 10));
+    for want in [
+        "current_density",
+        "**Used by**",
+        "`sensor_rail.pass_source`: rated",
+    ] {
+        assert!(metal.contains(want), "metal hover lacks `{want}`:\n{metal}");
+    }
+    // A fault case shows each expectation beside the bound it is held against.
+    let short = hover(&mut client, pos16(&text, "fault vout_short", 0, 8));
+    assert!(
+        short.contains("`expect current <= 300 mA`: derived up to 2")
+            && short.contains("holds at every corner"),
+        "{short}"
+    );
     // A short to supply shows its currents; this pass device blocks the reverse path.
     let to_cell = hover(&mut client, pos16(&text, "fault vout_to_cell", 0, 8));
     for want in [

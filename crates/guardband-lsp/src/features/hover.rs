@@ -137,8 +137,56 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
         Symbol::Node(n) => {
             let node = model.node(n);
             let _ = writeln!(out, "**{} `{}`**\n", node.keyword, node.path);
+            if matches!(node.kind, BlockKind::Metal | BlockKind::BondWire) {
+                process_data(analysis, node, out);
+            }
             derived_block(analysis, node, None, out);
         }
+    }
+}
+
+/// A metal layer or a bond-wire type: its data as written, and every
+/// conductor that uses it with its rating against its current.
+fn process_data(analysis: &Analysis, node: &Node, out: &mut String) {
+    let model = &analysis.checked.model;
+    let ws = &analysis.checked.ws;
+    let file = ws.file(node.file);
+    for f in &node.fields {
+        let written = file.text.get(f.expr.span.clone()).unwrap_or("").trim();
+        let _ = writeln!(out, "- `{}` = {written}: {}", f.key, f.spec.doc);
+    }
+    let key = match node.kind {
+        BlockKind::Metal => "layer",
+        _ => "wire",
+    };
+    let mut users = Vec::new();
+    for d in &analysis.checked.derived {
+        for c in &d.conductors {
+            let conductor = model.node(c.node);
+            if conductor.reference(key) != Some(node.id) {
+                continue;
+            }
+            let rating = match (&c.rating, &c.current) {
+                (Ok(r), Ok(i)) => format!(
+                    "rated {} against {} ({})",
+                    in_unit(*r, QuantityKind::CURRENT, None),
+                    in_unit(*i, QuantityKind::CURRENT, None),
+                    if guardband_rules::compare::below(*r, *i) {
+                        "short"
+                    } else {
+                        "clears it"
+                    }
+                ),
+                (Ok(r), Err(_)) => format!("rated {}", in_unit(*r, QuantityKind::CURRENT, None)),
+                (Err(u), _) => format!("no rating: {}", u.why.describe(model)),
+            };
+            users.push(format!("- `{}`: {rating}", conductor.path));
+        }
+    }
+    if users.is_empty() {
+        let _ = writeln!(out, "\nNo conductor in this check uses it.\n");
+    } else {
+        let _ = writeln!(out, "\n**Used by**\n\n{}\n", users.join("\n"));
     }
 }
 
@@ -222,6 +270,9 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     };
     let rows = view::rows(model, derived, &analysis.checked.config.options);
     let event = node.choice("event");
+    if node.kind == BlockKind::Fault {
+        expectations(model, derived, node, out);
+    }
     let wanted = |r: &Row| match node.kind {
         BlockKind::Regulator => r.node == node.id || r.role == Role::NotDerived,
         BlockKind::Limit | BlockKind::Conductor | BlockKind::Pass | BlockKind::CycleBudget => {
@@ -257,6 +308,57 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     };
     let chosen: Vec<&Row> = rows.iter().filter(|r| wanted(r)).collect();
     write_rows(&chosen, out);
+}
+
+/// Each expectation of a fault case beside the derived bound it is held
+/// against, and whether it holds, breaks, or is not checked.
+fn expectations(model: &Model, derived: &guardband_rules::Derived, fault: &Node, out: &mut String) {
+    use guardband_rules::derive::expected::{Expected, expected};
+    use guardband_syntax::Relation;
+    let Some(event) = fault.choice("event") else {
+        return;
+    };
+    let mut lines = Vec::new();
+    for exp in fault.fields_named("expect") {
+        let Some(bound) = exp.quantity() else {
+            continue;
+        };
+        let name = exp.name.as_deref().unwrap_or("");
+        let upper = matches!(exp.relation, Relation::AtMost | Relation::Below);
+        let limit = if upper { bound.lo } else { bound.hi };
+        let show = |x: f64| in_unit(x, bound.kind, bound.unit.as_deref());
+        let stated = format!("`expect {name} {} {}`", exp.relation.symbol(), show(limit));
+        let verdict = match expected(derived, fault, event, name) {
+            Expected::Bounds(b) => match if upper { b.hi } else { b.lo } {
+                Some(x) => {
+                    let holds = match exp.relation {
+                        Relation::AtMost => !guardband_rules::compare::exceeds(x, limit),
+                        Relation::Below => guardband_rules::compare::below(x, limit),
+                        Relation::AtLeast => !guardband_rules::compare::below(x, limit),
+                        _ => guardband_rules::compare::exceeds(x, limit),
+                    };
+                    format!(
+                        "derived {} {} ({}): {}",
+                        if upper { "up to" } else { "at least" },
+                        show(x),
+                        b.why,
+                        if holds {
+                            "holds at every corner"
+                        } else {
+                            "broken at some corner"
+                        }
+                    )
+                }
+                None => "not checked: the checker derives no bound on that side".to_string(),
+            },
+            Expected::Unknown(u) => format!("not checked: {}", u.describe(model)),
+            Expected::NotDerived => format!("not checked: no {name} is derived for this event"),
+        };
+        lines.push(format!("- {stated}: {verdict}"));
+    }
+    if !lines.is_empty() {
+        let _ = writeln!(out, "**Expectations**\n\n{}\n", lines.join("\n"));
+    }
 }
 
 /// Derived rows as a hover's list.

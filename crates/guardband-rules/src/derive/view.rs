@@ -537,6 +537,22 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         if let Some(f) = c.derating_factor {
             r.details
                 .push(format!("Black's-equation factor ×{}", number(f)));
+            // The inputs of that factor, as the layer states them.
+            if let Some(layer) = model.node(c.node).reference("layer").map(|l| model.node(l)) {
+                let stated = |key: &str| match layer.quantity(key) {
+                    Some(v) if v.lo == v.hi => in_unit(v.lo, v.kind, v.unit.as_deref()),
+                    Some(v) => bounds(v),
+                    None => "not stated".into(),
+                };
+                r.details.push(format!(
+                    "from layer `{}`: activation energy {}, current exponent {}, reference temperature {}, reference lifetime {} (each at its worst corner)",
+                    layer.key(),
+                    stated("activation_energy"),
+                    stated("current_exponent"),
+                    stated("reference_temperature"),
+                    stated("reference_lifetime"),
+                ));
+            }
         }
         if let Some(res) = c.resistance {
             r.details.push(format!(
