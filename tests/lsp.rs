@@ -755,6 +755,68 @@ fn quick_fixes_size_metal_insert_fault_cases_and_waive() {
 }
 
 #[test]
+fn quick_fixes_set_up_the_limit_loop_and_raise_the_limit() {
+    let (dir, path, text, u, mut client) =
+        open_example("lsp-actions-loop", "flawed/aux_rail.guard", json!({}));
+    let diags = client.diagnostics(&u, 1);
+    let titles_and_edits = |client: &mut Client, code: &str| -> Vec<(String, Vec<Value>)> {
+        let mut out = Vec::new();
+        for d in diags.iter().filter(|d| d["code"] == code) {
+            let r = client.request(
+                "textDocument/codeAction",
+                json!({ "textDocument": doc(&u), "range": d["range"], "context": { "diagnostics": [d] } }),
+            );
+            for a in r.as_array().expect("actions") {
+                let edits = a["edit"]["changes"][u.as_str()]
+                    .as_array()
+                    .cloned()
+                    .unwrap_or_default();
+                out.push((a["title"].as_str().unwrap_or("").to_string(), edits));
+            }
+        }
+        out
+    };
+    // The analysis forces the output with a current and breaks at the pin.
+    let setup = titles_and_edits(&mut client, "limit-loop-analysis");
+    let force = setup
+        .iter()
+        .find(|(t, _)| t == "Force `vout` with 1.65 V, below regulation")
+        .expect("a forcing fix");
+    let brk = setup
+        .iter()
+        .find(|(t, _)| t == "Break the loop at `pass.gate`")
+        .expect("a break fix");
+    let edits: Vec<Value> = force.1.iter().chain(&brk.1).cloned().collect();
+    let fixed = apply(&text, &edits);
+    assert!(fixed.contains("force vout = 1.65 V"), "{fixed}");
+    assert!(fixed.contains("break_at   = pass.gate"), "{fixed}");
+    std::fs::write(&path, &fixed).expect("write");
+    let after = check_tuples(&dir, &path);
+    assert!(
+        !after.iter().any(|t| t.0 == "limit-loop-analysis"),
+        "{after:?}"
+    );
+    std::fs::write(&path, &text).expect("restore");
+    // The limit window's low edge sits below rated load plus margin: the
+    // computed reference clears it.
+    let window = titles_and_edits(&mut client, "limit-within-load");
+    let (title, edits) = window
+        .iter()
+        .find(|(t, _)| t.starts_with("Raise `reference` of `sensed` to "))
+        .expect("a raise fix");
+    let fixed = apply(&text, edits);
+    std::fs::write(&path, &fixed).expect("write");
+    let after = check_tuples(&dir, &path);
+    assert!(
+        !after
+            .iter()
+            .any(|t| t.0 == "limit-within-load" || t.0 == "syntax"),
+        "{title}: {after:?}"
+    );
+    assert_eq!(client.stop(), Some(0));
+}
+
+#[test]
 fn formatting_matches_guardband_fmt_and_keeps_meaning() {
     let dir = temp_dir("lsp-format");
     std::fs::write(dir.join("guardband.toml"), "").expect("config");

@@ -5,9 +5,14 @@
 //! Computable fixes: size a conductor for the worst current (metal width and
 //! trace width scale linearly and as the 1/0.725 power of the current, a bond
 //! wire's diameter as the 2/3 power, a stated rating is raised to the
-//! current), and insert the skeleton of a missing fault case. Analysis
-//! skeletons hold placeholders the designer must fill in, so fix-all leaves
-//! them out.
+//! current), insert the skeleton of a missing fault case, set a limit-loop
+//! analysis up so that it limits (a voltage forcing below regulation, the
+//! break at the pass gate, the clamp on the driving side), and raise a
+//! sensed limit's reference (or threshold) to the computed value whose
+//! window clears rated load plus margin at the worst corner (and in the
+//! statistical check when it is on). Analysis skeletons hold placeholders
+//! the designer must fill in, and a raised limit moves every figure that
+//! follows from it, so fix-all leaves both out.
 
 use crate::encoding::Encoding;
 use crate::engine::Analysis;
@@ -124,6 +129,14 @@ fn fixes(analysis: &Analysis, file: FileId) -> Vec<Fix> {
         if let Some(f) = skeleton(analysis, d, i) {
             out.push(f);
         }
+        if d.rule == "limit-loop-analysis" {
+            out.extend(analysis_setup(analysis, d, i));
+        }
+        if d.rule == "limit-within-load"
+            && let Some(f) = raise_threshold(analysis, d, i)
+        {
+            out.push(f);
+        }
         if rules.iter().any(|r| r.name == d.rule) {
             out.push(waiver(analysis, d, i));
         }
@@ -132,13 +145,177 @@ fn fixes(analysis: &Analysis, file: FileId) -> Vec<Fix> {
 }
 
 fn conductor_of<'a>(analysis: &'a Analysis, d: &Diagnostic) -> Option<&'a Node> {
+    block_of(analysis, d, BlockKind::Conductor)
+}
+
+/// The block of `kind` a finding lies in.
+fn block_of<'a>(analysis: &'a Analysis, d: &Diagnostic, kind: BlockKind) -> Option<&'a Node> {
     analysis
         .checked
         .model
         .nodes
         .iter()
-        .filter(|n| n.kind == BlockKind::Conductor && n.file == d.file)
+        .filter(|n| n.kind == kind && n.file == d.file)
         .find(|n| n.span.start <= d.span.start && d.span.end <= n.span.end)
+}
+
+/// Sets a field of `node` to `text`: replaces its value, or adds the field
+/// on a line of its own before the block's closing brace.
+fn set_field(
+    analysis: &Analysis,
+    node: &Node,
+    key: &str,
+    text: &str,
+) -> Option<(std::ops::Range<usize>, String)> {
+    if let Some(f) = node.field(key) {
+        return Some((
+            f.expr.span.clone(),
+            keeping_comments(analysis, node.file, &f.expr.span, text.to_string()),
+        ));
+    }
+    let source = &analysis.checked.ws.file(node.file).text;
+    let close = node.span.end.checked_sub(1)?;
+    if source.as_bytes().get(close) != Some(&b'}') {
+        return None;
+    }
+    let outer = indent_at(source, node.span.start);
+    Some((close..close, format!("    {key} = {text}\n{outer}")))
+}
+
+/// Fixes of a limit-loop analysis set up so that it cannot limit: force
+/// the output below regulation with a voltage (half the output's nominal,
+/// well below its low edge), break the loop at the pass gate, put the clamp
+/// on the driving side.
+fn analysis_setup(analysis: &Analysis, d: &Diagnostic, index: usize) -> Vec<Fix> {
+    let model = &analysis.checked.model;
+    let Some(a) = block_of(analysis, d, BlockKind::Analysis) else {
+        return Vec::new();
+    };
+    let reg = model.item_of(a.id);
+    let mut out = Vec::new();
+    let fix = |title: String, edit: Option<(std::ops::Range<usize>, String)>| {
+        edit.map(|e| Fix {
+            title,
+            edits: vec![e],
+            safe: true,
+            diagnostic: index,
+        })
+    };
+    if d.message.contains("with an ideal current source")
+        || d.message.contains("not below regulation")
+    {
+        let forced = a
+            .fields_named("force")
+            .find(|f| f.expr.span.start <= d.span.start && d.span.end <= f.expr.span.end);
+        if let (Some(f), Some(output)) = (forced, reg.quantity("output")) {
+            let volts = guardband_rules::show::number(output.nom / 2.0);
+            let text = format!("{volts} V");
+            out.extend(fix(
+                format!("Force `{}` with {text}, below regulation", f.key),
+                Some((
+                    f.expr.span.clone(),
+                    keeping_comments(analysis, a.file, &f.expr.span, text),
+                )),
+            ));
+        }
+    }
+    if d.message
+        .contains("does not break the loop at the pass gate")
+    {
+        out.extend(fix(
+            "Break the loop at `pass.gate`".into(),
+            set_field(analysis, a, "break_at", "pass.gate"),
+        ));
+    }
+    if d.message.contains("clamp on the device side") {
+        out.extend(fix(
+            "Put the clamp on the driving side".into(),
+            set_field(analysis, a, "clamp_side", "driving"),
+        ));
+    }
+    out
+}
+
+/// Raises a sensed limit so that its worst-case low edge clears rated load
+/// plus margin (and, when the statistical check is on, so that no more
+/// than the allowed share of parts falls below it): the window scales with
+/// the nominal of the reference (when the threshold is `ratio * reference`)
+/// or of the threshold, so that number is multiplied by the least factor
+/// that clears both, with a hair of headroom, rounded up to three digits.
+fn raise_threshold(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<Fix> {
+    let model = &analysis.checked.model;
+    let options = &analysis.checked.config.options;
+    let limit = block_of(analysis, d, BlockKind::Limit)?;
+    let derived = analysis.checked.derived_for(model.item_of(limit.id).id)?;
+    let lw = derived.limit(limit.id)?;
+    let window = lw.window.as_ref().ok()?;
+    let required = derived.required()?;
+    if window.lo <= 0.0 {
+        return None;
+    }
+    let mut factor = (required / window.lo).max(1.0);
+    if options.statistical
+        && let Some(stat) = &lw.stat
+    {
+        // Every part of the statistics scales with the number; find the
+        // least factor whose tail below the required level is allowed.
+        let escapes = |s: f64| {
+            let mut scaled = stat.clone();
+            scaled.mean *= s;
+            scaled.sigma *= s;
+            scaled.bound *= s;
+            guardband_rules::derive::escape_ppm(&scaled, required) > options.escape_ppm
+        };
+        let (mut lo, mut hi) = (factor, factor.max(1.0) * 2.0);
+        while escapes(hi) && hi < 1e3 {
+            hi *= 2.0;
+        }
+        if escapes(lo) {
+            for _ in 0..60 {
+                let mid = (lo + hi) / 2.0;
+                if escapes(mid) { lo = mid } else { hi = mid }
+            }
+            factor = hi;
+        }
+    }
+    if factor <= 1.0 {
+        return None;
+    }
+    let source = &analysis.checked.ws.file(limit.file).text;
+    let threshold = limit.field("threshold")?;
+    let uses_reference = source
+        .get(threshold.expr.span.clone())
+        .is_some_and(|t| t.contains("reference"));
+    let key = if uses_reference {
+        "reference"
+    } else {
+        "threshold"
+    };
+    let field = limit.field(key)?;
+    let value = field.quantity()?;
+    let unit = value.unit.clone()?;
+    let parsed = parse_unit(&unit).ok()?;
+    // The nominal as written: the first number of the value, in its unit.
+    let text = source.get(field.expr.span.clone())?;
+    let digits_end = text
+        .find(|c: char| !(c.is_ascii_digit() || c == '.'))
+        .unwrap_or(text.len());
+    if digits_end == 0 {
+        return None;
+    }
+    let needed = value.nom * factor * 1.001;
+    let written = guardband_rules::show::ceil3(parsed.diff_from_si(needed));
+    let new_number = guardband_rules::show::number(written);
+    let start = field.expr.span.start;
+    Some(Fix {
+        title: format!(
+            "Raise `{key}` of `{}` to {new_number} {unit} (low edge then clears rated load + margin)",
+            limit.key()
+        ),
+        edits: vec![(start..start + digits_end, new_number)],
+        safe: false,
+        diagnostic: index,
+    })
 }
 
 /// Sizes a conductor for the worst current.
