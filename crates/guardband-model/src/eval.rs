@@ -181,6 +181,12 @@ impl<'a> Evaluator<'a> {
             (std::sync::Arc::clone(&f.expr), f.spec.ty, f.key.clone())
         };
         let result = self.typed(node, &expr, ty, &key);
+        let result = match result {
+            Some(FieldValue::Quantity(v)) => {
+                self.with_tempco(node, &key, v).map(FieldValue::Quantity)
+            }
+            other => other,
+        };
         self.stack.pop();
         if self.states[node.0 as usize][index] == State::Failed {
             return None;
@@ -477,6 +483,85 @@ impl<'a> Evaluator<'a> {
             self.coulomb_hint(expr);
         }
         None
+    }
+
+    /// A value with its temperature coefficient applied, when its block
+    /// states `KEY_tempco`: `v · (1 + tc·(T − 25 °C))` over every die
+    /// temperature the regulator admits, from its lowest ambient to its
+    /// junction limit (or highest ambient), as a range of its own (a bound,
+    /// not a spread). Unknown when the tempco or the temperatures cannot
+    /// be read.
+    fn with_tempco(&mut self, node: NodeId, key: &str, v: Value) -> Option<Value> {
+        // Only a block whose schema has `KEY_tempco` fields looks (so a
+        // block of a million spreads pays nothing per field).
+        let kind = self.model.node(node).kind;
+        if !schema::block_spec(kind)
+            .fields
+            .iter()
+            .any(|f| f.keyword.strip_suffix("_tempco") == Some(key))
+        {
+            return Some(v);
+        }
+        let tc_key = format!("{key}_tempco");
+        let Some(j) = self
+            .model
+            .node(node)
+            .fields
+            .iter()
+            .position(|f| f.key == tc_key)
+        else {
+            return Some(v);
+        };
+        let Some(FieldValue::Quantity(tc)) = self.field(node, j) else {
+            return None;
+        };
+        let file = self.file_of(node);
+        let tc_span = self.model.node(node).fields[j].expr.span.clone();
+        let reg = self.model.item_of(node).id;
+        let temperature = |ev: &mut Self, k: &str| {
+            let i = ev.model.node(reg).fields.iter().position(|f| f.key == k)?;
+            match ev.field(reg, i)? {
+                FieldValue::Quantity(t) => Some(t),
+                _ => None,
+            }
+        };
+        let Some(ambient) = temperature(self, "ambient") else {
+            self.push(
+                Diagnostic::error(
+                    "invalid-value",
+                    file,
+                    tc_span,
+                    format!("`{tc_key}` needs the regulator's `ambient` to know the temperatures it acts over"),
+                )
+                .primary("no temperatures to apply it over")
+                .help("state `ambient` (and `junction_max`) in the regulator"),
+            );
+            return None;
+        };
+        let hottest =
+            temperature(self, "junction_max").map_or(ambient.hi, |t| t.hi.max(ambient.hi));
+        const REFERENCE_K: f64 = 298.15;
+        let (d_lo, d_hi) = (ambient.lo - REFERENCE_K, hottest - REFERENCE_K);
+        let products = [tc.lo * d_lo, tc.lo * d_hi, tc.hi * d_lo, tc.hi * d_hi];
+        let lo = products.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = products.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let source = self.new_source(node, &tc_key, file, tc_span.clone(), Spread::Range);
+        let range = Value::range(QuantityKind::NONE, lo, hi, source);
+        match v.scaled_by(&range) {
+            Ok(out) => Some(out),
+            Err(e) => {
+                self.push(
+                    Diagnostic::error(
+                        "unit-mismatch",
+                        file,
+                        tc_span,
+                        format!("`{tc_key}` cannot apply to `{key}`: {e}"),
+                    )
+                    .primary("not applicable"),
+                );
+                None
+            }
+        }
     }
 
     fn new_source(

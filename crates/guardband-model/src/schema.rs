@@ -88,6 +88,8 @@ const RATIO: FieldType = FieldType::Quantity(QuantityKind::NONE);
 const ABS_TEMP: FieldType = FieldType::Quantity(QuantityKind::ABSOLUTE_TEMPERATURE);
 const DELTA_TEMP: FieldType = FieldType::Quantity(QuantityKind::TEMPERATURE_DIFFERENCE);
 const LENGTH: FieldType = q(Dimension::LENGTH);
+/// A temperature coefficient, `%/K` or `ppm/K`.
+const TEMPCO: FieldType = q(Dimension::PER_TEMPERATURE);
 const TIME: FieldType = q(Dimension::TIME);
 
 const fn f(keyword: &'static str, ty: FieldType, doc: &'static str) -> FieldSpec {
@@ -370,6 +372,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "output drive of the error amplifier at the gate",
             ),
             f(
+                "full_gate_current_tempco",
+                TEMPCO,
+                "temperature coefficient of `full_gate_current` (from 25 °C, over the die's temperatures)",
+            ),
+            f(
                 "body_diode",
                 VOLTAGE,
                 "forward drop of the body diode from the output to the input (not stated: 0 V, the most reverse current)",
@@ -426,6 +433,16 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "replica: drive of the clamp on the pass gate",
             ),
             f(
+                "reference_tempco",
+                TEMPCO,
+                "replica: temperature coefficient of `reference` (from 25 °C, over the die's temperatures)",
+            ),
+            f(
+                "threshold_tempco",
+                TEMPCO,
+                "replica: temperature coefficient of a stated `threshold`",
+            ),
+            f(
                 "threshold_voltage",
                 VOLTAGE,
                 "undervoltage_fixed: output voltage below which the fixed current is used",
@@ -434,6 +451,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "fixed_current",
                 CURRENT,
                 "undervoltage_fixed: the fixed current",
+            ),
+            f(
+                "fixed_current_tempco",
+                TEMPCO,
+                "undervoltage_fixed: temperature coefficient of `fixed_current`",
             ),
             f(
                 "trip_current",
