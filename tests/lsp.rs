@@ -217,7 +217,7 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
         );
         r["contents"]["value"].as_str().unwrap_or("").to_string()
     };
-    let threshold = hover(&mut client, pos16(&text, "threshold   = ratio", 0, 2));
+    let threshold = hover(&mut client, pos16(&text, "threshold        = ratio", 0, 2));
     for want in [
         "min",
         "nominal",
@@ -272,8 +272,9 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
     // A fault case shows each expectation beside the bound it is held against.
     let short = hover(&mut client, pos16(&text, "fault vout_short", 0, 8));
     assert!(
-        short.contains("`expect current <= 300 mA`: derived up to 2")
-            && short.contains("holds at every corner"),
+        short.contains(
+            "`expect current <= 300 mA`: derived up to 192 mA (the `sensed` limit folded back"
+        ) && short.contains("holds at every corner"),
         "{short}"
     );
     // A short to supply shows its currents; this pass device blocks the reverse path.
@@ -334,7 +335,7 @@ fn inlay_hints_follow_derived_values_and_can_be_turned_off() {
         json!({ "textDocument": doc(&u), "range": whole }),
     );
     let hints = hints.as_array().expect("hints");
-    let threshold_line = pos16(&text, "threshold   = ratio", 0, 0)["line"].clone();
+    let threshold_line = pos16(&text, "threshold        = ratio", 0, 0)["line"].clone();
     let on_line: Vec<&Value> = hints
         .iter()
         .filter(|h| h["position"]["line"] == threshold_line)
@@ -472,7 +473,7 @@ fn completion_offers_fields_units_names_and_choices() {
             .collect()
     };
     // At the start of a line inside `limit sensed`: its fields, with snippets.
-    let fields = labels(&mut client, pos16(&text, "        ratio      ", 0, 0));
+    let fields = labels(&mut client, pos16(&text, "        ratio            ", 0, 0));
     for want in ["ratio", "reference", "mismatch", "scheme"] {
         assert!(fields.contains(&want.to_string()), "{fields:?}");
     }
@@ -481,7 +482,10 @@ fn completion_offers_fields_units_names_and_choices() {
         assert!(!fields.contains(&unwanted.to_string()), "{fields:?}");
     }
     // After `scheme = `: the schemes.
-    let choices = labels(&mut client, pos16(&text, "scheme      = replica", 0, 14));
+    let choices = labels(
+        &mut client,
+        pos16(&text, "scheme           = replica", 0, 19),
+    );
     assert!(
         choices.contains(&"replica".to_string())
             && choices.contains(&"undervoltage_fixed".to_string()),
