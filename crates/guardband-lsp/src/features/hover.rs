@@ -271,7 +271,7 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     let rows = view::rows(model, derived, &analysis.checked.config.options);
     let event = node.choice("event");
     if node.kind == BlockKind::Fault {
-        expectations(model, derived, node, out);
+        fault_expectations(model, derived, node, out);
     }
     let wanted = |r: &Row| match node.kind {
         BlockKind::Regulator => r.node == node.id || r.role == Role::NotDerived,
@@ -312,18 +312,20 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
 
 /// Each expectation of a fault case beside the derived bound it is held
 /// against, and whether it holds, breaks, or is not checked.
-fn expectations(model: &Model, derived: &guardband_rules::Derived, fault: &Node, out: &mut String) {
-    use guardband_rules::derive::expected::{Expected, expected};
+fn fault_expectations(
+    model: &Model,
+    derived: &guardband_rules::Derived,
+    fault: &Node,
+    out: &mut String,
+) {
+    use guardband_rules::derive::expected::{Expected, expectations, expected};
     use guardband_syntax::Relation;
-    let Some(event) = fault.choice("event") else {
-        return;
-    };
     let mut lines = Vec::new();
-    for exp in fault.fields_named("expect") {
-        let Some(bound) = exp.quantity() else {
-            continue;
-        };
-        let name = exp.name.as_deref().unwrap_or("");
+    for e in expectations(model, derived)
+        .into_iter()
+        .filter(|e| e.fault.id == fault.id)
+    {
+        let (exp, bound, name, event) = (e.field, e.bound, e.name, e.event);
         let upper = matches!(exp.relation, Relation::AtMost | Relation::Below);
         let limit = if upper { bound.lo } else { bound.hi };
         let show = |x: f64| in_unit(x, bound.kind, bound.unit.as_deref());

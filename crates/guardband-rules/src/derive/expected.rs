@@ -5,7 +5,42 @@
 //! be compared, so an unverified pass criterion never reads as a pass.
 
 use super::{Derived, Unknown, envelope};
-use guardband_model::Node;
+use guardband_model::{BlockKind, Field, Model, Node, Value};
+
+/// One expectation of a fault case, as written and read.
+pub struct Expectation<'m> {
+    pub fault: &'m Node,
+    pub event: &'m str,
+    pub field: &'m Field,
+    /// The bound as read (expectations written with an error are left out).
+    pub bound: &'m Value,
+    /// The quantity it bounds: `current`, `junction`, `time` or `output`.
+    pub name: &'m str,
+}
+
+/// Every readable expectation of the fault cases of `d`'s regulator.
+pub fn expectations<'m>(model: &'m Model, d: &Derived) -> Vec<Expectation<'m>> {
+    let reg = model.node(d.regulator);
+    let mut out = Vec::new();
+    for fault in model.children(reg, BlockKind::Fault) {
+        let Some(event) = fault.choice("event") else {
+            continue;
+        };
+        for field in fault.fields_named("expect") {
+            let Some(bound) = field.quantity() else {
+                continue;
+            };
+            out.push(Expectation {
+                fault,
+                event,
+                field,
+                bound,
+                name: field.name.as_deref().unwrap_or(""),
+            });
+        }
+    }
+    out
+}
 
 /// A derived figure's bounds over every corner (either may be unknown) and why.
 #[derive(Debug, Clone)]

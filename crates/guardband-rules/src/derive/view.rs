@@ -286,31 +286,31 @@ pub fn rows(model: &Model, d: &Derived, options: &Options) -> Vec<Row> {
         match heat {
             Ok(h) => {
                 let mut r = row(reg, role, format!("{label}: junction"), dissipated(h));
+                // Under a hiccup the rise is the steady one times its peak factor g.
+                let g = h.pulsed.as_ref().map(|p| {
+                    let steady = p.steady_junction - h.ambient;
+                    if steady > 0.0 {
+                        (h.junction - h.ambient) / steady
+                    } else {
+                        1.0
+                    }
+                });
                 r.basis = format!(
-                    "T_A + (Vin − V)·I·θJA = {} + ({} − {}) × {} × {}",
+                    "T_A + (Vin − V)·I·θJA{} = {} + ({} − {}) × {} × {}{}",
+                    if g.is_some() { "·g" } else { "" },
                     celsius(h.ambient),
                     volts(h.supply),
                     volts(h.at_voltage),
                     amps(h.current, unit),
-                    theta(h)
+                    theta(h),
+                    g.map(|g| format!(
+                        " × {}, g = (1 − e^(−t_on/τ)) / (1 − e^(−(t_on + t_off)/τ)) at the longest on, shortest off and shortest τ",
+                        crate::show::digits(g, 4)
+                    ))
+                    .unwrap_or_default()
                 );
                 r.details.push(format!("the current there is {}", h.reason));
                 if let Some(p) = &h.pulsed {
-                    let steady = p.steady_junction - h.ambient;
-                    let g = if steady > 0.0 {
-                        (h.junction - h.ambient) / steady
-                    } else {
-                        1.0
-                    };
-                    r.basis = format!(
-                        "T_A + (Vin − V)·I·θJA·g = {} + ({} − {}) × {} × {} × {}, g = (1 − e^(−t_on/τ)) / (1 − e^(−(t_on + t_off)/τ)) at the longest on, shortest off and shortest τ",
-                        celsius(h.ambient),
-                        volts(h.supply),
-                        volts(h.at_voltage),
-                        amps(h.current, unit),
-                        theta(h),
-                        crate::show::digits(g, 4)
-                    );
                     r.value = format!(
                         "{} peak under the hiccup, at {} dissipated while on",
                         celsius(h.junction),

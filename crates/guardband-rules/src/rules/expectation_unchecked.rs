@@ -30,9 +30,9 @@
 //! or restate it as a figure the checker derives.
 
 use crate::context::Context;
-use crate::derive::expected::{Expected, expected};
+use crate::derive::expected::{Expected, expected, expectations};
 use crate::show::in_unit;
-use guardband_model::{BlockKind, Diagnostic};
+use guardband_model::Diagnostic;
 use guardband_syntax::Relation;
 
 /// The expectation's quantity in words.
@@ -46,55 +46,46 @@ fn quantity(name: &str) -> &str {
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
-        let reg = ctx.node(d.regulator);
-        for fault in ctx.model.children(reg, BlockKind::Fault) {
-            let Some(event) = fault.choice("event") else {
-                continue;
+        for e in expectations(ctx.model, d) {
+            let (fault, exp, bound, name, event) = (e.fault, e.field, e.bound, e.name, e.event);
+            let upper = match exp.relation {
+                Relation::AtMost | Relation::Below => true,
+                Relation::AtLeast | Relation::Above => false,
+                Relation::Assign => continue,
             };
-            for exp in fault.fields_named("expect") {
-                let Some(bound) = exp.quantity() else {
-                    continue;
-                };
-                let name = exp.name.as_deref().unwrap_or("");
-                let upper = match exp.relation {
-                    Relation::AtMost | Relation::Below => true,
-                    Relation::AtLeast | Relation::Above => false,
-                    Relation::Assign => continue,
-                };
-                let what = quantity(name);
-                let why = match expected(d, fault, event, name) {
-                    Expected::Bounds(b) if (if upper { b.hi } else { b.lo }).is_some() => continue,
-                    Expected::Bounds(_) => format!(
-                        "the checker derives no {} bound of the {what} in a `{event}` case",
-                        if upper { "upper" } else { "lower" }
-                    ),
-                    Expected::Unknown(u) if u.has_error() => continue,
-                    Expected::Unknown(u) => {
-                        format!("its figure is not derived: {}", u.describe(ctx.model))
-                    }
-                    Expected::NotDerived => {
-                        format!("the checker derives no {what} in a `{event}` case")
-                    }
-                };
-                out.push(
-                    ctx.finding(
-                        fault.file,
-                        exp.span.clone(),
-                        format!(
-                            "fault `{}` expects {name} {} {}, but {why}: this expectation is not checked",
-                            fault.key(),
-                            exp.relation.symbol(),
-                            in_unit(
-                                if upper { bound.lo } else { bound.hi },
-                                bound.kind,
-                                bound.unit.as_deref()
-                            ),
+            let what = quantity(name);
+            let why = match expected(d, fault, event, name) {
+                Expected::Bounds(b) if (if upper { b.hi } else { b.lo }).is_some() => continue,
+                Expected::Bounds(_) => format!(
+                    "the checker derives no {} bound of the {what} in a `{event}` case",
+                    if upper { "upper" } else { "lower" }
+                ),
+                Expected::Unknown(u) if u.has_error() => continue,
+                Expected::Unknown(u) => {
+                    format!("its figure is not derived: {}", u.describe(ctx.model))
+                }
+                Expected::NotDerived => {
+                    format!("the checker derives no {what} in a `{event}` case")
+                }
+            };
+            out.push(
+                ctx.finding(
+                    fault.file,
+                    exp.span.clone(),
+                    format!(
+                        "fault `{}` expects {name} {} {}, but {why}: this expectation is not checked",
+                        fault.key(),
+                        exp.relation.symbol(),
+                        in_unit(
+                            if upper { bound.lo } else { bound.hi },
+                            bound.kind,
+                            bound.unit.as_deref()
                         ),
-                    )
-                    .primary("not checked")
-                    .help("verify it on the bench or in simulation, or state what the figure needs"),
-                );
-            }
+                    ),
+                )
+                .primary("not checked")
+                .help("verify it on the bench or in simulation, or state what the figure needs"),
+            );
         }
     }
 }

@@ -45,62 +45,53 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::derive::expected::{Bounds, Expected, expected};
+use crate::derive::expected::{Bounds, Expected, expected, expectations};
 use crate::show::{difference, versus};
-use guardband_model::{BlockKind, Diagnostic, Value};
+use guardband_model::{Diagnostic, Value};
 use guardband_syntax::Relation;
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
     for d in ctx.derived {
-        let reg = ctx.node(d.regulator);
-        for fault in ctx.model.children(reg, BlockKind::Fault) {
-            let Some(event) = fault.choice("event") else {
+        for e in expectations(ctx.model, d) {
+            let (fault, exp, bound, name) = (e.fault, e.field, e.bound, e.name);
+            let Expected::Bounds(fig) = expected(d, fault, e.event, name) else {
                 continue;
             };
-            for exp in fault.fields_named("expect") {
-                let Some(bound) = exp.quantity() else {
-                    continue;
-                };
-                let name = exp.name.as_deref().unwrap_or("");
-                let Expected::Bounds(fig) = expected(d, fault, event, name) else {
-                    continue;
-                };
-                let Some((derived, limit, upper)) = contradiction(exp.relation, &fig, bound) else {
-                    continue;
-                };
-                let show = |a: f64, b: f64| versus(a, b, bound.kind, bound.unit.as_deref());
-                let message = if derived.is_infinite() {
+            let Some((derived, limit, upper)) = contradiction(exp.relation, &fig, bound) else {
+                continue;
+            };
+            let show = |a: f64, b: f64| versus(a, b, bound.kind, bound.unit.as_deref());
+            let message = if derived.is_infinite() {
+                format!(
+                    "fault `{}` expects {name} {} {}, but the output never starts",
+                    fault.key(),
+                    exp.relation.symbol(),
+                    show(limit, limit).0
+                )
+            } else {
+                let (x, l) = show(derived, limit);
+                let by = difference(derived, limit, bound.kind, bound.unit.as_deref());
+                if upper {
                     format!(
-                        "fault `{}` expects {name} {} {}, but the output never starts",
+                        "fault `{}` expects {name} {} {l}, but it can reach {x}, {by} more ({})",
                         fault.key(),
                         exp.relation.symbol(),
-                        show(limit, limit).0
+                        fig.why
                     )
                 } else {
-                    let (x, l) = show(derived, limit);
-                    let by = difference(derived, limit, bound.kind, bound.unit.as_deref());
-                    if upper {
-                        format!(
-                            "fault `{}` expects {name} {} {l}, but it can reach {x}, {by} more ({})",
-                            fault.key(),
-                            exp.relation.symbol(),
-                            fig.why
-                        )
-                    } else {
-                        format!(
-                            "fault `{}` expects {name} {} {l}, but it can be as low as {x}, {by} less ({})",
-                            fault.key(),
-                            exp.relation.symbol(),
-                            fig.why
-                        )
-                    }
-                };
-                out.push(
-                    ctx.finding(fault.file, exp.span.clone(), message)
-                        .primary("contradicted by the derived bounds")
-                        .help("correct the expectation, or change the design so that every corner meets it"),
-                );
-            }
+                    format!(
+                        "fault `{}` expects {name} {} {l}, but it can be as low as {x}, {by} less ({})",
+                        fault.key(),
+                        exp.relation.symbol(),
+                        fig.why
+                    )
+                }
+            };
+            out.push(
+                ctx.finding(fault.file, exp.span.clone(), message)
+                    .primary("contradicted by the derived bounds")
+                    .help("correct the expectation, or change the design so that every corner meets it"),
+            );
         }
     }
 }
