@@ -211,6 +211,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 CURRENT,
                 "current the regulator itself draws from the supply in regulation (ground current)",
             ),
+            f(
+                "supply_min",
+                VOLTAGE,
+                "the lowest input at which it still regulates (its output plus dropout); a shared supply's droop below it is a finding",
+            ),
             f("ambient", ABS_TEMP, "ambient temperature range"),
             f(
                 "junction_max",

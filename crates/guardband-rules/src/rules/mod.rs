@@ -47,7 +47,7 @@ crate::registry::declare_rules! {
     cycle_budget_exceeded: "cycle-budget-exceeded", Some(Severity::Error),
         "sustained shorts that cycle the junction more than the cycle budget allows";
     rail_droop: "rail-droop", Some(Severity::Error),
-        "regulators starting together that droop a shared supply to its lockout or past its current limit";
+        "regulators starting together that droop a shared supply to its lockout, below a regulator's minimum supply, or past its current limit";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }

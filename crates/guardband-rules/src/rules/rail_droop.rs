@@ -1,7 +1,8 @@
 //! ## What it flags
 //! A shared `supply` item whose regulators, starting together, draw so much
 //! that the rail droops to or below its `lockout` (the undervoltage lockout
-//! of the loads on it), or draw more than its `current_limit`. The droop is
+//! of the loads on it) or below a drawing regulator's `supply_min` (it
+//! drops out of regulation), or draw more than its `current_limit`. The droop is
 //! the sum of the regulators' startup surges times the source's largest
 //! resistance, plus the wiring's largest inductance times that current
 //! over the shortest `rise_time`, from the source's lowest voltage.
@@ -46,6 +47,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
         }
         lockout(ctx, &rail, droop, out);
         current_limit(ctx, &rail, droop, out);
+        dropout(ctx, &rail, droop, out);
     }
 }
 
@@ -128,6 +130,41 @@ fn lockout(ctx: &Context, rail: &Rail, d: &Droop, out: &mut Vec<Diagnostic>) {
     out.push(diag.help(
         "sequence the regulators so the surges do not add, slow their soft starts, or lower the source resistance",
     ));
+}
+
+/// A regulator on the rail that falls out of regulation in the droop.
+fn dropout(ctx: &Context, rail: &Rail, d: &Droop, out: &mut Vec<Diagnostic>) {
+    let supply = ctx.node(rail.supply);
+    for (id, _) in &rail.drawers {
+        let reg = ctx.node(*id);
+        let Some(min) = reg.quantity("supply_min") else {
+            continue;
+        };
+        if !compare::below(d.lowest, min.hi) {
+            continue;
+        }
+        let diag = ctx
+            .at(
+                reg,
+                "supply_min",
+                format!(
+                    "starting together, {} droop `{}` by {} to {}, below the {} `{}` needs to regulate, {} short",
+                    names(ctx, rail),
+                    supply.key(),
+                    formula(supply, d),
+                    volts(d.lowest),
+                    volts(min.hi),
+                    reg.key(),
+                    difference(min.hi, d.lowest, QuantityKind::VOLTAGE, Some("V")),
+                ),
+            )
+            .primary("drops out of regulation during the startup surge");
+        out.push(
+            ctx.label(diag, supply, "resistance", "source resistance").help(
+                "sequence the regulators so the surges do not add, slow their soft starts, or lower the source resistance",
+            ),
+        );
+    }
 }
 
 fn current_limit(ctx: &Context, rail: &Rail, d: &Droop, out: &mut Vec<Diagnostic>) {
