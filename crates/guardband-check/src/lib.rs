@@ -31,6 +31,8 @@ pub struct Checked {
     pub model: Model,
     /// One entry per regulator, in the order of [`Model::regulators`].
     pub derived: Vec<Derived>,
+    /// Every `supply` item with the regulators drawing from it and its droop.
+    pub rails: Vec<guardband_rules::derive::rail::Rail>,
     /// Every finding, spans normalised, sorted by [`sort_diagnostics`].
     pub diagnostics: Vec<Diagnostic>,
 }
@@ -84,8 +86,9 @@ pub fn check_with_config_file(
         .regulators()
         .map(|r| guardband_rules::derive(&model, r, &config.options))
         .collect();
+    let rails = guardband_rules::derive::rail::rails(&model, &derived);
     let mut diagnostics =
-        guardband_rules::lint(&ws, &model, &config.options, &derived, diagnostics);
+        guardband_rules::lint(&ws, &model, &config.options, &derived, &rails, diagnostics);
     ws.normalize_spans(&mut diagnostics);
     sort_diagnostics(&ws, &mut diagnostics);
     let diagnostics =
@@ -95,6 +98,7 @@ pub fn check_with_config_file(
         config,
         model,
         derived,
+        rails,
         diagnostics,
     })
 }

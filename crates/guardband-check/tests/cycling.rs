@@ -96,3 +96,30 @@ fn no_sampled_corner_cycles_faster_than_the_bound() {
     // And not uselessly loose: within a factor of two of the fastest sampled.
     assert!(bound >= fastest * 0.5, "bound {bound} far below {fastest}");
 }
+
+// A cycle budget beside a thermal shutdown with no hysteresis: the cycles a
+// short makes cannot be counted, so the budget is unknown and named, never
+// passed as spent by nothing (the reviewer's principle).
+#[test]
+fn a_budget_without_the_shutdown_hysteresis_is_unknown_not_passed() {
+    let text = spec(
+        "4 V",
+        "25 °C",
+        "100 K/W",
+        "250 uA",
+        "threshold = 150 °C  time_constant = 10 ms",
+    )
+    .replace(
+        "    thermal_shutdown",
+        "    cycle_budget { cycles = 10000  swing = 100 K  exponent = 3 .. 5  short_time = 100 h }\n    thermal_shutdown",
+    );
+    let checked = check(&text);
+    assert!(checked.derived[0].cycle_damage.is_err());
+    let named: Vec<&str> = checked
+        .diagnostics
+        .iter()
+        .filter(|f| f.rule == "figure-not-derived")
+        .map(|f| f.message.as_str())
+        .collect();
+    assert!(named.iter().any(|m| m.contains("hysteresis")), "{named:?}");
+}

@@ -45,6 +45,21 @@ pub struct Diagnostic {
     /// The primary label (under `span`) comes first.
     pub labels: Vec<Label>,
     pub help: Option<String>,
+    /// The edit the rule knows would fix this finding, if any: editors offer
+    /// it as a code action keyed on this, never on the message's wording.
+    pub remedy: Option<Remedy>,
+}
+
+/// A fix a rule can name for its finding, applied by the language server's
+/// code actions. The finding's span says where it applies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Remedy {
+    /// Force the output (the `force` under the span) with a voltage below regulation.
+    ForceBelowRegulation,
+    /// Set the analysis' `break_at` to the pass gate.
+    BreakAtPassGate,
+    /// Set the analysis' `clamp_side` to the driving side.
+    ClampOnDrivingSide,
 }
 
 impl Diagnostic {
@@ -58,6 +73,7 @@ impl Diagnostic {
             message: message.into(),
             labels: Vec::new(),
             help: None,
+            remedy: None,
         }
     }
 
@@ -85,6 +101,12 @@ impl Diagnostic {
             span,
             message: message.into(),
         });
+        self
+    }
+
+    /// Names the fix a code action can apply.
+    pub fn remedy(mut self, remedy: Remedy) -> Self {
+        self.remedy = Some(remedy);
         self
     }
 

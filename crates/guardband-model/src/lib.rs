@@ -16,7 +16,7 @@ mod suggest;
 pub mod value;
 mod workspace;
 
-pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Severity};
+pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Remedy, Severity};
 pub use eval::visible_items;
 pub use limits::Limits;
 pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};

@@ -192,7 +192,7 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
 /// its regulators start together.
 fn power_tree(checked: &Checked, md: &mut String) {
     let model = &checked.model;
-    let rails = guardband_rules::derive::rail::rails(model, &checked.derived);
+    let rails = &checked.rails;
     if rails.is_empty() {
         return;
     }
@@ -200,7 +200,7 @@ fn power_tree(checked: &Checked, md: &mut String) {
         md,
         "## Power tree\n\n| supply | regulators (startup surge) | all starting together | how |\n|---|---|---|---|"
     );
-    for rail in &rails {
+    for rail in rails {
         for row in guardband_rules::derive::view::rail_rows(model, rail) {
             let _ = writeln!(
                 md,

@@ -13,6 +13,8 @@ pub struct Context<'a> {
     pub model: &'a Model,
     pub options: &'a Options,
     pub derived: &'a [Derived],
+    /// Every shared supply rail with its drawers and droop.
+    pub rails: &'a [crate::derive::rail::Rail],
     /// The rule being run.
     pub rule: &'static RuleInfo,
 }

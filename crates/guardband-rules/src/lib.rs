@@ -60,6 +60,7 @@ pub fn lint(
     model: &Model,
     options: &Options,
     derived: &[Derived],
+    rails: &[derive::rail::Rail],
     mut diagnostics: Vec<Diagnostic>,
 ) -> Vec<Diagnostic> {
     let mut findings = Vec::new();
@@ -77,6 +78,7 @@ pub fn lint(
             model,
             options,
             derived,
+            rails,
             rule,
         };
         let mut found = Vec::new();

@@ -16,7 +16,7 @@
 
 use crate::encoding::Encoding;
 use crate::engine::Analysis;
-use guardband_model::{BlockKind, Diagnostic, FileId, Node};
+use guardband_model::{BlockKind, Diagnostic, FileId, Node, Remedy};
 use guardband_units::parse_unit;
 use std::collections::HashMap;
 use tower_lsp_server::ls_types::{
@@ -201,37 +201,32 @@ fn analysis_setup(analysis: &Analysis, d: &Diagnostic, index: usize) -> Vec<Fix>
             diagnostic: index,
         })
     };
-    if d.message.contains("with an ideal current source")
-        || d.message.contains("not below regulation")
-    {
-        let forced = a
-            .fields_named("force")
-            .find(|f| f.expr.span.start <= d.span.start && d.span.end <= f.expr.span.end);
-        if let (Some(f), Some(output)) = (forced, reg.quantity("output")) {
-            let volts = guardband_rules::show::number(output.nom / 2.0);
-            let text = format!("{volts} V");
-            out.extend(fix(
-                format!("Force `{}` with {text}, below regulation", f.key),
-                Some((
-                    f.expr.span.clone(),
-                    keeping_comments(analysis, a.file, &f.expr.span, text),
-                )),
-            ));
+    match d.remedy {
+        Some(Remedy::ForceBelowRegulation) => {
+            let forced = a
+                .fields_named("force")
+                .find(|f| f.expr.span.start <= d.span.start && d.span.end <= f.expr.span.end);
+            if let (Some(f), Some(output)) = (forced, reg.quantity("output")) {
+                let volts = guardband_rules::show::number(output.nom / 2.0);
+                let text = format!("{volts} V");
+                out.extend(fix(
+                    format!("Force `{}` with {text}, below regulation", f.key),
+                    Some((
+                        f.expr.span.clone(),
+                        keeping_comments(analysis, a.file, &f.expr.span, text),
+                    )),
+                ));
+            }
         }
-    }
-    if d.message
-        .contains("does not break the loop at the pass gate")
-    {
-        out.extend(fix(
+        Some(Remedy::BreakAtPassGate) => out.extend(fix(
             "Break the loop at `pass.gate`".into(),
             set_field(analysis, a, "break_at", "pass.gate"),
-        ));
-    }
-    if d.message.contains("clamp on the device side") {
-        out.extend(fix(
+        )),
+        Some(Remedy::ClampOnDrivingSide) => out.extend(fix(
             "Put the clamp on the driving side".into(),
             set_field(analysis, a, "clamp_side", "driving"),
-        ));
+        )),
+        None => {}
     }
     out
 }

@@ -256,8 +256,9 @@ fn show_delta(delta: f64, v: &Value) -> String {
 fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut String) {
     let model = &analysis.checked.model;
     if node.kind == BlockKind::Supply {
-        let rails = guardband_rules::derive::rail::rails(model, &analysis.checked.derived);
-        let rows: Vec<Row> = rails
+        let rows: Vec<Row> = analysis
+            .checked
+            .rails
             .iter()
             .filter(|r| r.supply == node.id)
             .flat_map(|r| view::rail_rows(model, r))

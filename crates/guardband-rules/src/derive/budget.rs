@@ -82,6 +82,11 @@ pub fn damage(
             });
         }
     };
+    if let Some(tsd) = model.child(reg, BlockKind::ThermalShutdown) {
+        // Without a hysteresis the cycling cannot be ruled in or out: the
+        // budget is unknown, never spent by nothing.
+        need(tsd, "hysteresis")?;
+    }
     if let Some(tsd) = model.child(reg, BlockKind::ThermalShutdown)
         && let Some(c) = cycling.as_ref().map_err(Clone::clone)?
     {

@@ -9,6 +9,7 @@
 use super::Derived;
 use super::unknown::{Figure, Unknown, both, need};
 use guardband_model::{BlockKind, Model, NodeId};
+use std::collections::HashMap;
 
 /// The droop of one shared rail.
 #[derive(Debug, Clone, PartialEq)]
@@ -38,25 +39,30 @@ pub struct Rail {
     pub droop: Figure<Droop>,
 }
 
-/// Every `supply` item of the model with its figures.
+/// Every `supply` item of the model with its figures, in one pass over the
+/// derivations (the regulators grouped by the supply they name).
 pub fn rails(model: &Model, derived: &[Derived]) -> Vec<Rail> {
+    let mut by_supply: HashMap<NodeId, Vec<(NodeId, Figure<f64>)>> = HashMap::new();
+    for d in derived {
+        let Some(supply) = model.node(d.regulator).reference("supply") else {
+            continue;
+        };
+        let surge = d.startup.as_ref().map(|st| st.surge).map_err(|u| {
+            Unknown::because(format!(
+                "the startup surge of `{}` is not derived",
+                model.node(d.regulator).key()
+            ))
+            .join(u)
+        });
+        by_supply
+            .entry(supply)
+            .or_default()
+            .push((d.regulator, surge));
+    }
     model
         .items_of(BlockKind::Supply)
         .map(|s| {
-            let drawers: Vec<(NodeId, Figure<f64>)> = derived
-                .iter()
-                .filter(|d| model.node(d.regulator).reference("supply") == Some(s.id))
-                .map(|d| {
-                    let surge = d.startup.as_ref().map(|st| st.surge).map_err(|u| {
-                        Unknown::because(format!(
-                            "the startup surge of `{}` is not derived",
-                            model.node(d.regulator).key()
-                        ))
-                        .join(u)
-                    });
-                    (d.regulator, surge)
-                })
-                .collect();
+            let drawers = by_supply.remove(&s.id).unwrap_or_default();
             let droop = droop(model.node(s.id), &drawers);
             Rail {
                 supply: s.id,

@@ -39,7 +39,7 @@ use crate::derive::Unknown;
 use guardband_model::{BlockKind, Diagnostic, Node};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for rail in crate::derive::rail::rails(ctx.model, ctx.derived) {
+    for rail in ctx.rails {
         if let (Err(u), false) = (&rail.droop, rail.drawers.is_empty()) {
             push(ctx, out, ctx.node(rail.supply), &[("rail droop", u)]);
         }

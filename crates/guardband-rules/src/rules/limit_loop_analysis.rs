@@ -36,7 +36,7 @@
 
 use crate::context::Context;
 use crate::show::in_unit;
-use guardband_model::{BlockKind, Diagnostic, FieldValue};
+use guardband_model::{BlockKind, Diagnostic, FieldValue, Remedy};
 use guardband_syntax::Relation;
 use guardband_units::{Dimension, QuantityKind};
 
@@ -135,7 +135,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                         out.push(
                             ctx.finding(a.file, f.expr.span.clone(), format!("analysis `{}` forces `{}` with an ideal current source", a.key(), f.key))
                                 .primary("an ideal current source sets the current itself; the limit loop has nothing to do")
-                                .help("force with a voltage source below regulation, or a resistance"),
+                                .help("force with a voltage source below regulation, or a resistance")
+                                .remedy(Remedy::ForceBelowRegulation),
                         );
                     } else if v.kind == QuantityKind::VOLTAGE {
                         if let Some(out_v) = output
@@ -148,7 +149,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                                     a.key(), f.key
                                 ))
                                 .primary("the loop stays in regulation here")
-                                .help("force a voltage clearly below the output's low limit");
+                                .help("force a voltage clearly below the output's low limit")
+                                .remedy(Remedy::ForceBelowRegulation);
                             out.push(ctx.label(d, reg, "output", "regulation range"));
                         }
                     } else if v.kind == QuantityKind::of(Dimension::RESISTANCE)
@@ -164,7 +166,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                                         in_unit(out_v.lo, out_v.kind, out_v.unit.as_deref())
                                     ))
                                     .primary("resistance too high")
-                                    .help("use a smaller resistance or a voltage source"),
+                                    .help("use a smaller resistance or a voltage source")
+                                    .remedy(Remedy::ForceBelowRegulation),
                                 );
                         }
                     }
@@ -178,7 +181,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                     out.push(
                         ctx.finding(a.file, span, format!("analysis `{}` does not break the loop at the pass gate", a.key()))
                             .primary(if a.field("break_at").is_some() { "breaks elsewhere" } else { "no `break_at`" })
-                            .help("break at `pass.gate`, the node both loops share, with the clamp on the driving side"),
+                            .help("break at `pass.gate`, the node both loops share, with the clamp on the driving side")
+                            .remedy(Remedy::BreakAtPassGate),
                     );
                 }
                 for req in a.fields_named("require") {
@@ -205,7 +209,8 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                             a.key()
                         ))
                         .primary("the clamp must drive the gate from the driving side")
-                        .help("connect the clamp on the driving side of the break (`clamp_side = driving`), so that the loop gain includes it"),
+                        .help("connect the clamp on the driving side of the break (`clamp_side = driving`), so that the loop gain includes it")
+                        .remedy(Remedy::ClampOnDrivingSide),
                     );
                 }
             }

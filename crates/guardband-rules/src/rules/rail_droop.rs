@@ -34,20 +34,20 @@
 
 use crate::compare;
 use crate::context::Context;
-use crate::derive::rail::{Droop, Rail, rails};
+use crate::derive::rail::{Droop, Rail};
 use crate::show::{difference, in_unit, in_unit_digits, versus};
 use guardband_model::{Diagnostic, Node};
 use guardband_units::{Dimension, QuantityKind};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for rail in rails(ctx.model, ctx.derived) {
+    for rail in ctx.rails {
         let Ok(droop) = &rail.droop else { continue };
         if rail.drawers.is_empty() {
             continue;
         }
-        lockout(ctx, &rail, droop, out);
-        current_limit(ctx, &rail, droop, out);
-        dropout(ctx, &rail, droop, out);
+        lockout(ctx, rail, droop, out);
+        current_limit(ctx, rail, droop, out);
+        dropout(ctx, rail, droop, out);
     }
 }
 
