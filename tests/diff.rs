@@ -148,3 +148,36 @@ fn the_same_revision_twice_moves_nothing_and_a_missing_one_is_an_error() {
     );
     assert!(examples.is_dir());
 }
+
+// A shared supply's droop is a derived figure like a regulator's: raising
+// the cell's resistance top from 250 to 300 mΩ adds 50 mΩ × the 0.4 A of
+// surge the rails draw together (the droop's resistive term, Ohm's law):
+// 0.104 V → 0.124 V.
+#[test]
+fn a_supply_that_moved_is_listed_with_its_droop() {
+    let dir = temp_dir("diff-supply");
+    let (before, after) = (dir.join("before"), dir.join("after"));
+    copy_tree(&root().join("examples"), &before);
+    copy_tree(&root().join("examples"), &after);
+    edit(
+        &after.join("tern_cell.guard"),
+        "resistance = 120 mohm .. 250 mohm",
+        "resistance = 120 mohm .. 300 mohm",
+    );
+    let run = guardband(&dir, &["diff", "before", "after"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let md = &run.stdout;
+    assert!(
+        md.contains("0 regulators and 1 supply changed, added or removed;"),
+        "{md}"
+    );
+    assert!(
+        md.contains("### Supply `tern_cell` (tern_cell.guard, changed)"),
+        "{md}"
+    );
+    assert!(md.contains("0.104 V → 0.124 V (+19.2 %)"), "{md}");
+    let run = guardband(&dir, &["diff", "before", "after", "--format", "json"]);
+    let v: Value = serde_json::from_str(&run.stdout).expect("json");
+    assert_eq!(v["supplies"][0]["name"], "tern_cell");
+    assert_eq!(v["regulators"].as_array().map(Vec::len), Some(0));
+}

@@ -1,8 +1,8 @@
-//! What moved between two revisions of a workspace: each regulator's
-//! derived figures, the findings and the waivers, as Markdown for a
+//! What moved between two revisions of a workspace: each regulator's and
+//! each shared supply's derived figures, the findings and the waivers, as Markdown for a
 //! pull-request comment and as JSON.
 //!
-//! Figures are matched by regulator name and figure label, findings by
+//! Figures are matched by regulator (or supply) name and figure label, findings by
 //! file, rule and the text of the line they point at (not the line number,
 //! so an edit above a finding does not make it new), waivers by file and
 //! the rules they waive. Where the numbers of a figure line up before and
@@ -23,11 +23,13 @@ use std::fmt::Write as _;
 #[derive(Debug, Clone, Default)]
 pub struct Snapshot {
     pub regulators: Vec<RegulatorFigures>,
+    /// The shared `supply` items: the rail's drawers and droop.
+    pub supplies: Vec<RegulatorFigures>,
     pub findings: Vec<Finding>,
     pub waivers: Vec<Waiver>,
 }
 
-/// One regulator's derived figures as labelled values.
+/// One regulator's (or shared supply's) derived figures as labelled values.
 #[derive(Debug, Clone)]
 pub struct RegulatorFigures {
     pub name: String,
@@ -75,6 +77,21 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
                 .collect(),
         })
         .collect();
+    let supplies = checked
+        .rails
+        .iter()
+        .map(|rail| {
+            let node = model.node(rail.supply);
+            RegulatorFigures {
+                name: node.key().to_string(),
+                file: ws.file(node.file).display.clone(),
+                figures: view::rail_rows(model, rail)
+                    .into_iter()
+                    .map(|r| (r.label, r.value))
+                    .collect(),
+            }
+        })
+        .collect();
     let findings = checked
         .diagnostics
         .iter()
@@ -105,6 +122,7 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
         .collect();
     Snapshot {
         regulators,
+        supplies,
         findings,
         waivers,
     }
@@ -239,7 +257,7 @@ pub struct FigureChange {
     pub moves: Vec<(Shown, Shown, String)>,
 }
 
-/// A regulator whose figures changed, or that came or went.
+/// A regulator (or supply) whose figures changed, or that came or went.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RegulatorChange {
     pub name: String,
@@ -252,6 +270,7 @@ pub struct RegulatorChange {
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Diff {
     pub regulators: Vec<RegulatorChange>,
+    pub supplies: Vec<RegulatorChange>,
     pub new_findings: Vec<Finding>,
     pub resolved_findings: Vec<Finding>,
     /// The same finding with a different message: `(before, after)`.
@@ -339,38 +358,31 @@ fn figure_changes(before: &[(String, String)], after: &[(String, String)]) -> Ve
     out
 }
 
-/// What moved from `before` to `after`.
-pub fn diff(before: &Snapshot, after: &Snapshot) -> Diff {
-    let mut out = Diff::default();
-    let old_regs: HashMap<&str, &RegulatorFigures> = before
-        .regulators
-        .iter()
-        .map(|r| (r.name.as_str(), r))
-        .collect();
-    for r in &after.regulators {
-        match old_regs.get(r.name.as_str()) {
-            Some(was) => {
-                let figures = figure_changes(&was.figures, &r.figures);
-                if !figures.is_empty() {
-                    out.regulators.push(RegulatorChange {
-                        name: r.name.clone(),
-                        file: r.file.clone(),
-                        status: "changed",
-                        figures,
-                    });
-                }
-            }
-            None => out.regulators.push(RegulatorChange {
+/// The regulators (or supplies) whose figures changed, came or went,
+/// matched by name.
+fn item_changes(before: &[RegulatorFigures], after: &[RegulatorFigures]) -> Vec<RegulatorChange> {
+    let mut out = Vec::new();
+    let old: HashMap<&str, &RegulatorFigures> =
+        before.iter().map(|r| (r.name.as_str(), r)).collect();
+    let new: HashMap<&str, &RegulatorFigures> =
+        after.iter().map(|r| (r.name.as_str(), r)).collect();
+    for r in after {
+        let (status, figures) = match old.get(r.name.as_str()) {
+            Some(was) => ("changed", figure_changes(&was.figures, &r.figures)),
+            None => ("added", figure_changes(&[], &r.figures)),
+        };
+        if status == "added" || !figures.is_empty() {
+            out.push(RegulatorChange {
                 name: r.name.clone(),
                 file: r.file.clone(),
-                status: "added",
-                figures: figure_changes(&[], &r.figures),
-            }),
+                status,
+                figures,
+            });
         }
     }
-    for r in &before.regulators {
-        if !after.regulators.iter().any(|n| n.name == r.name) {
-            out.regulators.push(RegulatorChange {
+    for r in before {
+        if !new.contains_key(r.name.as_str()) {
+            out.push(RegulatorChange {
                 name: r.name.clone(),
                 file: r.file.clone(),
                 status: "removed",
@@ -378,6 +390,16 @@ pub fn diff(before: &Snapshot, after: &Snapshot) -> Diff {
             });
         }
     }
+    out
+}
+
+/// What moved from `before` to `after`.
+pub fn diff(before: &Snapshot, after: &Snapshot) -> Diff {
+    let mut out = Diff {
+        regulators: item_changes(&before.regulators, &after.regulators),
+        supplies: item_changes(&before.supplies, &after.supplies),
+        ..Diff::default()
+    };
 
     let finding_key = |f: &Finding| format!("{}\0{}\0{}", f.file, f.rule, f.context);
     let old = keyed(&before.findings, finding_key);
@@ -457,6 +479,35 @@ fn plural(n: usize, word: &str) -> String {
 }
 
 /// The diff as a Markdown comment for a pull request.
+/// One regulator's or supply's figure table.
+fn item_table(md: &mut String, what: &str, r: &RegulatorChange) {
+    let _ = writeln!(
+        md,
+        "### {what} `{}` ({}, {})\n",
+        r.name, r.file, r.status
+    );
+    if r.figures.is_empty() {
+        return;
+    }
+    let _ = writeln!(md, "| figure | before | after | moved |\n|---|---|---|---|");
+    for f in &r.figures {
+        let moved: Vec<String> = f
+            .moves
+            .iter()
+            .map(|(a, b, c)| format!("{} → {} ({c})", a.text, b.text))
+            .collect();
+        let _ = writeln!(
+            md,
+            "| {} | {} | {} | {} |",
+            cell(&f.label),
+            cell(f.before.as_deref().unwrap_or("—")),
+            cell(f.after.as_deref().unwrap_or("—")),
+            cell(&moved.join("; "))
+        );
+    }
+    md.push('\n');
+}
+
 pub fn markdown(d: &Diff, before: &str, after: &str) -> String {
     let mut md = String::new();
     let _ = writeln!(md, "## guardband: derived figures, {before} → {after}\n");
@@ -465,8 +516,13 @@ pub fn markdown(d: &Diff, before: &str, after: &str) -> String {
     } else {
         let _ = writeln!(
             md,
-            "{} changed, added or removed; {}, {} resolved, {} reworded; waivers: {} added, {} removed, {} changed.\n",
+            "{}{} changed, added or removed; {}, {} resolved, {} reworded; waivers: {} added, {} removed, {} changed.\n",
             plural(d.regulators.len(), "regulator"),
+            match d.supplies.len() {
+                0 => String::new(),
+                1 => " and 1 supply".to_string(),
+                n => format!(" and {n} supplies"),
+            },
             plural(d.new_findings.len(), "new finding"),
             d.resolved_findings.len(),
             d.changed_findings.len(),
@@ -475,32 +531,13 @@ pub fn markdown(d: &Diff, before: &str, after: &str) -> String {
             d.changed_waivers.len()
         );
     }
-    for r in &d.regulators {
-        let _ = writeln!(
-            md,
-            "### Regulator `{}` ({}, {})\n",
-            r.name, r.file, r.status
-        );
-        if r.figures.is_empty() {
-            continue;
-        }
-        let _ = writeln!(md, "| figure | before | after | moved |\n|---|---|---|---|");
-        for f in &r.figures {
-            let moved: Vec<String> = f
-                .moves
-                .iter()
-                .map(|(a, b, c)| format!("{} → {} ({c})", a.text, b.text))
-                .collect();
-            let _ = writeln!(
-                md,
-                "| {} | {} | {} | {} |",
-                cell(&f.label),
-                cell(f.before.as_deref().unwrap_or("—")),
-                cell(f.after.as_deref().unwrap_or("—")),
-                cell(&moved.join("; "))
-            );
-        }
-        md.push('\n');
+    for (what, r) in d
+        .regulators
+        .iter()
+        .map(|r| ("Regulator", r))
+        .chain(d.supplies.iter().map(|r| ("Supply", r)))
+    {
+        item_table(&mut md, what, r);
     }
     let sections: [(&str, Vec<String>); 6] = [
         (
@@ -577,26 +614,31 @@ fn waiver_json(w: &Waiver) -> Value {
 }
 
 /// The diff as JSON (schema in the README).
+fn change_json(r: &RegulatorChange) -> Value {
+    json!({
+        "name": r.name,
+        "file": r.file,
+        "status": r.status,
+        "figures": r.figures.iter().map(|f| json!({
+            "figure": f.label,
+            "before": f.before,
+            "after": f.after,
+            "moved": f.moves.iter().map(|(a, b, c)| json!({
+                "before": shown_json(a),
+                "after": shown_json(b),
+                "change": c,
+            })).collect::<Vec<_>>(),
+        })).collect::<Vec<_>>(),
+    })
+}
+
 pub fn json(d: &Diff, before: &str, after: &str) -> Value {
     json!({
         "version": 1,
         "before": before,
         "after": after,
-        "regulators": d.regulators.iter().map(|r| json!({
-            "name": r.name,
-            "file": r.file,
-            "status": r.status,
-            "figures": r.figures.iter().map(|f| json!({
-                "figure": f.label,
-                "before": f.before,
-                "after": f.after,
-                "moved": f.moves.iter().map(|(a, b, c)| json!({
-                    "before": shown_json(a),
-                    "after": shown_json(b),
-                    "change": c,
-                })).collect::<Vec<_>>(),
-            })).collect::<Vec<_>>(),
-        })).collect::<Vec<_>>(),
+        "regulators": d.regulators.iter().map(change_json).collect::<Vec<_>>(),
+        "supplies": d.supplies.iter().map(change_json).collect::<Vec<_>>(),
         "findings": {
             "new": d.new_findings.iter().map(finding_json).collect::<Vec<_>>(),
             "resolved": d.resolved_findings.iter().map(finding_json).collect::<Vec<_>>(),
@@ -657,6 +699,7 @@ mod tests {
                     ("same".into(), "1 A".into()),
                 ],
             }],
+            supplies: Vec::new(),
             findings: vec![Finding {
                 file: "r.guard".into(),
                 line: 3,
