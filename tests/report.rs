@@ -298,3 +298,50 @@ fn an_unrated_conductor_is_listed_with_its_reason() {
         "{summary}"
     );
 }
+
+// The power tree's chart: each shared supply's source range, its droop with
+// every regulator starting together and its lockout on one voltage axis.
+// The IR pack's droop reaches its lockout (the deliberate `rail-droop` in
+// `examples/flawed/ir_pack.guard`) and is marked in words; the camera
+// cell's is not.
+#[test]
+fn the_power_tree_chart_draws_each_supply_and_marks_a_droop_into_the_lockout() {
+    let out = temp_dir("report-power-tree");
+    let summary = report(&["examples"], &out);
+    assert!(summary.contains("](power-tree.svg)"), "{summary}");
+    let svg = std::fs::read_to_string(out.join("power-tree.svg")).expect("chart");
+    let doc = roxmltree::Document::parse(&svg).expect("xml");
+    let texts: Vec<&str> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .filter_map(|n| n.text())
+        .map(str::trim)
+        .collect();
+    for t in ["supply ir_pack", "supply tern_cell", "voltage (V)"] {
+        assert!(texts.contains(&t), "{t}: {texts:?}");
+    }
+    let droops: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.attribute("data-role") == Some("droop"))
+        .collect();
+    assert_eq!(droops.len(), 2);
+    let fails: Vec<Option<&str>> = droops.iter().map(|n| n.attribute("data-fails")).collect();
+    assert_eq!(fails, [Some("reaches the lockout"), None]);
+    // The bar runs from the lowest the rail falls to up to the source's
+    // lowest voltage (3.0 V for the pack), and its low end is below the
+    // lockout's top edge (2.8 V + 2 % = 2.856 V).
+    let lo: f64 = droops[0]
+        .attribute("data-lo-volts")
+        .and_then(|v| v.parse().ok())
+        .expect("lo");
+    let hi: f64 = droops[0]
+        .attribute("data-hi-volts")
+        .and_then(|v| v.parse().ok())
+        .expect("hi");
+    assert!((hi - 3.0).abs() < 1e-12, "{hi}");
+    assert!(lo < 2.856, "{lo}");
+    assert!(
+        texts.iter().any(|t| t.starts_with("✗ droops to ")),
+        "{texts:?}"
+    );
+}

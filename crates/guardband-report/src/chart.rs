@@ -14,9 +14,9 @@ const VALUE_WIDTH: f64 = 250.0;
 const ROW: f64 = 30.0;
 const TOP: f64 = 56.0;
 const BOTTOM: f64 = 64.0;
-const FONT: &str = "DejaVu Sans, Verdana, Arial, sans-serif";
+pub(crate) const FONT: &str = "DejaVu Sans, Verdana, Arial, sans-serif";
 
-fn colour(kind: BarKind) -> &'static str {
+pub(crate) fn colour(kind: BarKind) -> &'static str {
     match kind {
         BarKind::RatedLoad => "#0072B2",   // blue
         BarKind::Margin => "#56B4E9",      // sky blue, hatched
@@ -30,7 +30,7 @@ fn colour(kind: BarKind) -> &'static str {
 }
 
 /// A step of 1, 2 or 5 times a power of ten giving about `target` ticks.
-fn tick_step(max: f64, target: f64) -> f64 {
+pub(crate) fn tick_step(max: f64, target: f64) -> f64 {
     let raw = max / target;
     let power = 10f64.powf(raw.log10().floor());
     [1.0, 2.0, 5.0, 10.0]
@@ -40,7 +40,7 @@ fn tick_step(max: f64, target: f64) -> f64 {
         .unwrap_or(10.0 * power)
 }
 
-fn text(x: f64, y: f64, content: &str) -> Text {
+pub(crate) fn text(x: f64, y: f64, content: &str) -> Text {
     Text::new(content)
         .set("x", x)
         .set("y", y)

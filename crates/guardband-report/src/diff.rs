@@ -481,11 +481,7 @@ fn plural(n: usize, word: &str) -> String {
 /// The diff as a Markdown comment for a pull request.
 /// One regulator's or supply's figure table.
 fn item_table(md: &mut String, what: &str, r: &RegulatorChange) {
-    let _ = writeln!(
-        md,
-        "### {what} `{}` ({}, {})\n",
-        r.name, r.file, r.status
-    );
+    let _ = writeln!(md, "### {what} `{}` ({}, {})\n", r.name, r.file, r.status);
     if r.figures.is_empty() {
         return;
     }

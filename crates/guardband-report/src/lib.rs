@@ -10,6 +10,7 @@ pub mod chart;
 pub mod coverage;
 pub mod diff;
 pub mod figures;
+pub mod tree_chart;
 
 use guardband_check::Checked;
 use guardband_model::Severity;
@@ -168,7 +169,9 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         md.push('\n');
         charts.push((reg.key().to_string(), chart::chart(&f).to_string()));
     }
-    power_tree(checked, &mut md);
+    if let Some(svg) = power_tree(checked, &mut md) {
+        charts.push((tree_chart::FILE.trim_end_matches(".svg").to_string(), svg));
+    }
     waivers(ws, &mut md);
     let elsewhere: Vec<_> = checked
         .diagnostics
@@ -189,16 +192,20 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
 }
 
 /// The shared supplies, what draws from each and how far each droops when
-/// its regulators start together.
-fn power_tree(checked: &Checked, md: &mut String) {
+/// its regulators start together: a table, and the chart it links (the
+/// SVG text returned), or `None` when the workspace has no supply.
+fn power_tree(checked: &Checked, md: &mut String) -> Option<String> {
     let model = &checked.model;
     let rails = &checked.rails;
-    if rails.is_empty() {
-        return;
-    }
+    let svg = tree_chart::chart(model, rails)?.to_string();
     let _ = writeln!(
         md,
-        "## Power tree\n\n| supply | regulators (startup surge) | all starting together | how |\n|---|---|---|---|"
+        "## Power tree\n\n![Shared supplies on one voltage axis: source range, droop with every regulator starting together, lockout, each regulator's lowest input]({})\n",
+        tree_chart::FILE
+    );
+    let _ = writeln!(
+        md,
+        "| supply | regulators (startup surge) | all starting together | how |\n|---|---|---|---|"
     );
     for rail in rails {
         for row in guardband_rules::derive::view::rail_rows(model, rail) {
@@ -213,4 +220,5 @@ fn power_tree(checked: &Checked, md: &mut String) {
         }
     }
     md.push('\n');
+    Some(svg)
 }
