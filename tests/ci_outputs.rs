@@ -361,3 +361,16 @@ fn output_file_and_exit_zero() {
         2
     );
 }
+
+// `--format json` streams one finding at a time; its text is exactly
+// serde_json's pretty form of the whole document (parsed and printed again
+// it does not change), with findings and without.
+#[test]
+fn streamed_json_is_the_pretty_form_of_the_document() {
+    for target in ["examples", "examples/radio_rail.guard"] {
+        let run = common::guardband(&common::root(), &["check", "--format", "json", target]);
+        let value: serde_json::Value = serde_json::from_str(&run.stdout).expect("json");
+        let again = serde_json::to_string_pretty(&value).expect("print") + "\n";
+        assert_eq!(run.stdout, again, "{target}");
+    }
+}

@@ -235,10 +235,12 @@ fn check(
         let out: &mut dyn std::io::Write = if to_file {
             &mut buffer
         } else {
-            lock = stdout.lock();
+            // Standard output is line-buffered; findings go through a
+            // block buffer instead (flushed below).
+            lock = std::io::BufWriter::with_capacity(1 << 16, stdout.lock());
             &mut lock
         };
-        match format {
+        let result = match format {
             Format::Human => render::human(
                 out,
                 !to_file && render::stdout_wants_color(),
@@ -253,7 +255,8 @@ fn check(
                 writeln!(out, "{text}")
             }
             Format::Github => github::annotations(out, ws, diagnostics, &repo_base()),
-        }
+        };
+        result.and_then(|()| out.flush())
     };
     if let Err(e) = written
         && e.kind() != std::io::ErrorKind::BrokenPipe

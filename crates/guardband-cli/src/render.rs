@@ -155,37 +155,53 @@ fn range(
     serde_json::json!({ "start": position(ws, file, span.start), "end": position(ws, file, span.end) })
 }
 
-/// The JSON document of a check (schema in the README).
-pub fn json_value(ws: &Workspace, diagnostics: &[Diagnostic], files: usize) -> serde_json::Value {
-    let items: Vec<serde_json::Value> = diagnostics
-        .iter()
-        .map(|d| {
-            serde_json::json!({
-                "rule": d.rule,
-                "severity": d.severity.as_str(),
-                "file": ws.file(d.file).display,
-                "range": range(ws, d.file, &d.span),
-                "message": d.message,
-                "labels": d.labels.iter().map(|l| serde_json::json!({
-                    "file": ws.file(l.file).display,
-                    "range": range(ws, l.file, &l.span),
-                    "message": l.message,
-                })).collect::<Vec<_>>(),
-                "help": d.help,
-            })
-        })
-        .collect();
-    serde_json::json!({ "version": 1, "files_checked": files, "diagnostics": items })
+/// One finding as its JSON object.
+fn json_item(ws: &Workspace, d: &Diagnostic) -> serde_json::Value {
+    serde_json::json!({
+        "rule": d.rule,
+        "severity": d.severity.as_str(),
+        "file": ws.file(d.file).display,
+        "range": range(ws, d.file, &d.span),
+        "message": d.message,
+        "labels": d.labels.iter().map(|l| serde_json::json!({
+            "file": ws.file(l.file).display,
+            "range": range(ws, l.file, &l.span),
+            "message": l.message,
+        })).collect::<Vec<_>>(),
+        "help": d.help,
+    })
 }
 
-/// Writes the JSON document and a newline.
+/// Writes the JSON document of a check (schema in the README) and a
+/// newline, one finding at a time through a buffer: memory stays constant
+/// per finding however many there are. The text is the same as
+/// `serde_json`'s pretty form of the whole document (keys in sorted order,
+/// two-space indent); a test holds the two together.
 pub fn json(
     out: &mut dyn Write,
     ws: &Workspace,
     diagnostics: &[Diagnostic],
     files: usize,
 ) -> std::io::Result<()> {
-    serde_json::to_writer_pretty(&mut *out, &json_value(ws, diagnostics, files))?;
-    writeln!(out)?;
+    let mut out = std::io::BufWriter::with_capacity(1 << 16, out);
+    out.write_all(b"{\n  \"diagnostics\": [")?;
+    for (i, d) in diagnostics.iter().enumerate() {
+        out.write_all(if i == 0 { b"\n" } else { b",\n" })?;
+        let text = serde_json::to_string_pretty(&json_item(ws, d))?;
+        for (j, line) in text.split('\n').enumerate() {
+            if j > 0 {
+                out.write_all(b"\n")?;
+            }
+            out.write_all(b"    ")?;
+            out.write_all(line.as_bytes())?;
+        }
+    }
+    if !diagnostics.is_empty() {
+        out.write_all(b"\n  ")?;
+    }
+    write!(
+        out,
+        "],\n  \"files_checked\": {files},\n  \"version\": 1\n}}\n"
+    )?;
     out.flush()
 }
