@@ -48,10 +48,7 @@ impl Checked {
 
     /// The derivation of the regulator with this node id.
     pub fn derived_for(&self, regulator: guardband_model::NodeId) -> Option<&Derived> {
-        self.model
-            .regulators()
-            .position(|r| r.id == regulator)
-            .and_then(|i| self.derived.get(i))
+        guardband_rules::derive::derived_of(&self.derived, regulator)
     }
 }
 

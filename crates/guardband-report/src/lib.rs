@@ -27,16 +27,24 @@ pub fn chart_file(regulator: &str) -> String {
 /// needed); returns the paths written.
 pub fn write(checked: &Checked, out: &Path) -> std::io::Result<Vec<PathBuf>> {
     std::fs::create_dir_all(out)?;
-    let mut written = Vec::new();
-    let (summary, charts) = render(checked);
-    for (name, svg) in charts {
-        let path = out.join(chart_file(&name));
-        std::fs::write(&path, svg)?;
-        written.push(path);
+    let mut written = vec![out.join("summary.md")];
+    let mut failed = None;
+    // Each chart is written as soon as it is drawn, so memory does not
+    // grow with the number of regulators.
+    let summary = render(checked, &mut |name, svg| {
+        if failed.is_some() {
+            return;
+        }
+        let path = out.join(chart_file(name));
+        match std::fs::write(&path, svg) {
+            Ok(()) => written.push(path),
+            Err(e) => failed = Some(e),
+        }
+    });
+    if let Some(e) = failed {
+        return Err(e);
     }
-    let path = out.join("summary.md");
-    std::fs::write(&path, summary)?;
-    written.insert(0, path);
+    std::fs::write(&written[0], summary)?;
     Ok(written)
 }
 
@@ -93,8 +101,9 @@ fn waivers(ws: &guardband_model::Workspace, md: &mut String) {
     md.push('\n');
 }
 
-/// The summary text and each regulator's chart (name, SVG text).
-pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
+/// The summary text; each chart (regulator's, then the power tree's) is
+/// handed to `chart_out` as `(name, SVG text)` as soon as it is drawn.
+pub fn render(checked: &Checked, chart_out: &mut dyn FnMut(&str, &str)) -> String {
     let model = &checked.model;
     let ws = &checked.ws;
     let mut md = String::new();
@@ -126,8 +135,8 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         plural(checked.count(Severity::Info), "info")
     );
     let _ = writeln!(md, "> {CAUTION}\n");
-    let mut charts = Vec::new();
-    for (reg, derived) in model.regulators().zip(&checked.derived) {
+    let (by_regulator, elsewhere) = findings_by_regulator(checked);
+    for ((reg, derived), findings) in model.regulators().zip(&checked.derived).zip(by_regulator) {
         let f = figures::figures(model, reg, derived, &checked.config.options);
         let file = &ws.file(reg.file).display;
         let _ = writeln!(md, "## Regulator `{}` ({file})\n", reg.key());
@@ -153,13 +162,6 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
         let _ = writeln!(md, "\n### Fault coverage\n");
         md.push_str(&coverage::matrix(model, reg));
         let _ = writeln!(md, "\n### Open findings\n");
-        let findings: Vec<_> = checked
-            .diagnostics
-            .iter()
-            .filter(|d| {
-                d.file == reg.file && reg.span.start <= d.span.start && d.span.end <= reg.span.end
-            })
-            .collect();
         if findings.is_empty() {
             let _ = writeln!(md, "None.\n");
         }
@@ -167,28 +169,61 @@ pub fn render(checked: &Checked) -> (String, Vec<(String, String)>) {
             let _ = writeln!(md, "{}", finding(ws, d, false));
         }
         md.push('\n');
-        charts.push((reg.key().to_string(), chart::chart(&f).to_string()));
+        chart_out(reg.key(), &chart::chart(&f).to_string());
     }
     if let Some(svg) = power_tree(checked, &mut md) {
-        charts.push((tree_chart::FILE.trim_end_matches(".svg").to_string(), svg));
+        chart_out(tree_chart::FILE.trim_end_matches(".svg"), &svg);
     }
     waivers(ws, &mut md);
-    let elsewhere: Vec<_> = checked
-        .diagnostics
-        .iter()
-        .filter(|d| {
-            !model.regulators().any(|r| {
-                d.file == r.file && r.span.start <= d.span.start && d.span.end <= r.span.end
-            })
-        })
-        .collect();
     if !elsewhere.is_empty() {
         let _ = writeln!(md, "## Findings outside any regulator\n");
         for d in elsewhere {
             let _ = writeln!(md, "{}", finding(ws, d, true));
         }
     }
-    (md, charts)
+    md
+}
+
+/// Each finding under the regulator whose block holds it (one list per
+/// regulator, in the order of `Model::regulators`), and the rest: one
+/// binary search per finding among its file's regulators, so the report
+/// stays linear in the number of regulators.
+fn findings_by_regulator(
+    checked: &Checked,
+) -> (
+    Vec<Vec<&guardband_model::Diagnostic>>,
+    Vec<&guardband_model::Diagnostic>,
+) {
+    let model = &checked.model;
+    let mut spans: std::collections::HashMap<_, Vec<(usize, usize, usize)>> =
+        std::collections::HashMap::new();
+    let mut count = 0;
+    for (i, r) in model.regulators().enumerate() {
+        spans
+            .entry(r.file)
+            .or_default()
+            .push((r.span.start, r.span.end, i));
+        count = i + 1;
+    }
+    for list in spans.values_mut() {
+        list.sort_unstable();
+    }
+    let mut by_regulator = vec![Vec::new(); count];
+    let mut elsewhere = Vec::new();
+    for d in &checked.diagnostics {
+        let holder = spans.get(&d.file).and_then(|list| {
+            // Regulator blocks do not overlap: the one starting last at or
+            // before the finding is the only one that can hold it.
+            let n = list.partition_point(|(start, _, _)| *start <= d.span.start);
+            let (_, end, i) = *list.get(n.checked_sub(1)?)?;
+            (d.span.end <= end).then_some(i)
+        });
+        match holder {
+            Some(i) => by_regulator[i].push(d),
+            None => elsewhere.push(d),
+        }
+    }
+    (by_regulator, elsewhere)
 }
 
 /// The shared supplies, what draws from each and how far each droops when

@@ -63,10 +63,7 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 );
                 continue;
             }
-            let window = ctx
-                .derived
-                .iter()
-                .find(|d| d.regulator == reg.id)
+            let window = crate::derive::derived_of(ctx.derived, reg.id)
                 .and_then(|d| d.limit(limit.id))
                 .and_then(|l| l.window.as_ref().ok());
             for a in analyses {
