@@ -179,6 +179,17 @@ fn recovery(
     Ok(load::first_shortfall(lower, &load, output.hi))
 }
 
+/// The derivation of the regulator `id` among `derived` (one per regulator,
+/// in the order of `Model::regulators`, so ordered by node id): a binary
+/// search, not a scan, so that looking every regulator up stays linear.
+pub fn derived_of(derived: &[Derived], id: NodeId) -> Option<&Derived> {
+    match derived.binary_search_by_key(&id, |d| d.regulator) {
+        Ok(i) => derived.get(i),
+        // Not ordered after all (a caller's own list): scan.
+        Err(_) => derived.iter().find(|d| d.regulator == id),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use guardband_model::{SourceId, Value};
@@ -218,16 +229,5 @@ mod tests {
                 "top {top}"
             );
         }
-    }
-}
-
-/// The derivation of the regulator `id` among `derived` (one per regulator,
-/// in the order of `Model::regulators`, so ordered by node id): a binary
-/// search, not a scan, so that looking every regulator up stays linear.
-pub fn derived_of(derived: &[Derived], id: NodeId) -> Option<&Derived> {
-    match derived.binary_search_by_key(&id, |d| d.regulator) {
-        Ok(i) => derived.get(i),
-        // Not ordered after all (a caller's own list): scan.
-        Err(_) => derived.iter().find(|d| d.regulator == id),
     }
 }
