@@ -71,7 +71,7 @@ fn full_check(
         .diagnostics
         .iter()
         .map(|d| {
-            let p = checked.ws.file(d.file).line_index.line_col(d.span.start);
+            let p = checked.ws.file(d.file).line_index().line_col(d.span.start);
             serde_json::json!({ "rule": d.rule, "message": d.message, "line": p.line + 1, "column": p.chars + 1 })
         })
         .collect();

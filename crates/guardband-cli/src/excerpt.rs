@@ -87,7 +87,7 @@ pub fn excerpts<'w>(
     let mut out = Vec::new();
     for f in by_file {
         let source = file(f);
-        let index = &source.line_index;
+        let index = source.line_index();
         let text = &source.text;
         let mut lines: Vec<(u32, Range<usize>)> = Vec::new();
         for (_, s) in spans.iter().filter(|(g, _)| *g == f) {

@@ -40,8 +40,8 @@ pub fn annotations(
 ) -> std::io::Result<()> {
     for d in diagnostics {
         let file = ws.file(d.file);
-        let a = file.line_index.line_col(d.span.start);
-        let b = file.line_index.line_col(d.span.end);
+        let a = file.line_index().line_col(d.span.start);
+        let b = file.line_index().line_col(d.span.end);
         let mut message = d.message.clone();
         if let Some(help) = &d.help {
             message.push_str("\nhelp: ");

@@ -348,7 +348,7 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
                 .collect();
             if let Some(first) = syntax.first() {
                 let file = checked.ws.file(first.file);
-                let at = file.line_index.line_col(first.span.start);
+                let at = file.line_index().line_col(first.span.start);
                 eprintln!(
                     "guardband: {} syntax error{} (the first in {} at line {}: {}); the report covers only what could be read (see `guardband check`)",
                     syntax.len(),

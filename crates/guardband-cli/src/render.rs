@@ -143,7 +143,7 @@ pub fn human(
 }
 
 fn position(ws: &Workspace, file: guardband_model::FileId, offset: usize) -> serde_json::Value {
-    let p = ws.file(file).line_index.line_col(offset);
+    let p = ws.file(file).line_index().line_col(offset);
     serde_json::json!({ "line": p.line + 1, "column": p.chars + 1 })
 }
 

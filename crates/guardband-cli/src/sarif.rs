@@ -95,7 +95,7 @@ fn fingerprint(ws: &Workspace, d: &Diagnostic, seen: &mut HashMap<u64, u32>) -> 
 }
 
 fn region(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<usize>) -> Value {
-    let index = &ws.file(file).line_index;
+    let index = ws.file(file).line_index();
     let a = index.line_col(span.start);
     let b = index.line_col(span.end);
     json!({

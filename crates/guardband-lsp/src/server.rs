@@ -237,7 +237,7 @@ impl Backend {
         + 'static,
     ) -> Result<Option<T>> {
         self.query(uri, move |a, file, encoding, settings| {
-            let at = encoding.offset(&a.checked.ws.file(file).line_index, position);
+            let at = encoding.offset(a.checked.ws.file(file).line_index(), position);
             work(a, file, at, encoding, settings)
         })
         .await
@@ -260,7 +260,7 @@ impl Backend {
         + 'static,
     ) -> Result<Option<T>> {
         self.query(uri, move |a, file, encoding, settings| {
-            let index = &a.checked.ws.file(file).line_index;
+            let index = a.checked.ws.file(file).line_index();
             let (x, y) = (
                 encoding.offset(index, range.start),
                 encoding.offset(index, range.end),

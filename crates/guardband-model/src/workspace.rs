@@ -17,12 +17,19 @@ pub struct SourceFile {
     /// The text without a leading byte-order mark.
     pub text: String,
     pub parse: Parse,
-    pub line_index: LineIndex,
+    /// Built on first use ([`SourceFile::line_index`]): only files that a
+    /// finding, hover or edit points into need one.
+    pub lines: std::sync::OnceLock<LineIndex>,
     /// Files this one imports with `use`, in order, with the span of each `use`.
     pub imports: Vec<(FileId, guardband_syntax::Span)>,
 }
 
 impl SourceFile {
+    /// The file's line index, built the first time it is asked for.
+    pub fn line_index(&self) -> &LineIndex {
+        self.lines.get_or_init(|| LineIndex::new(&self.text))
+    }
+
     /// The text of the line holding byte `offset` (clamped to the text),
     /// without its line break: what identifies a finding across edits
     /// that move it to another line.
@@ -67,14 +74,13 @@ impl Workspace {
             .strip_prefix(&self.root)
             .map(|p| p.to_string_lossy().replace('\\', "/"))
             .unwrap_or_else(|_| path.to_string_lossy().into_owned());
-        let line_index = LineIndex::new(&text);
         self.files.push(SourceFile {
             id,
             path,
             display,
             text,
             parse,
-            line_index,
+            lines: std::sync::OnceLock::new(),
             imports: Vec::new(),
         });
         id

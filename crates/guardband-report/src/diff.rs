@@ -97,7 +97,7 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
         .iter()
         .map(|d| {
             let file = ws.file(d.file);
-            let at = file.line_index.line_col(d.span.start);
+            let at = file.line_index().line_col(d.span.start);
             Finding {
                 file: file.display.clone(),
                 line: at.line as usize + 1,
@@ -114,7 +114,7 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
             let file = ws.file(w.file);
             Waiver {
                 file: file.display.clone(),
-                line: file.line_index.line_col(w.span.start).line as usize + 1,
+                line: file.line_index().line_col(w.span.start).line as usize + 1,
                 rules: w.rules,
                 reason: w.reason,
             }

@@ -54,7 +54,7 @@ fn finding(
     d: &guardband_model::Diagnostic,
     with_file: bool,
 ) -> String {
-    let at = ws.file(d.file).line_index.line_col(d.span.start);
+    let at = ws.file(d.file).line_index().line_col(d.span.start);
     let place = if with_file {
         format!("in {} at line {}", ws.file(d.file).display, at.line + 1)
     } else {
@@ -87,7 +87,7 @@ fn waivers(ws: &guardband_model::Workspace, md: &mut String) {
     }
     for w in &list {
         let file = ws.file(w.file);
-        let at = file.line_index.line_col(w.span.start);
+        let at = file.line_index().line_col(w.span.start);
         let rules: Vec<String> = w.rules.iter().map(|r| format!("`{r}`")).collect();
         let _ = writeln!(
             md,

@@ -42,7 +42,7 @@ pub fn code_actions(
     encoding: Encoding,
 ) -> Vec<CodeActionOrCommand> {
     let source = analysis.checked.ws.file(file);
-    let index = &source.line_index;
+    let index = source.line_index();
     let (lo, hi) = (within.start, within.end);
     let wanted = |kind: &CodeActionKind| {
         params.context.only.as_ref().is_none_or(|only| {

@@ -16,7 +16,7 @@ pub fn convert(
     related_information: bool,
 ) -> Vec<Diagnostic> {
     let ws = &analysis.checked.ws;
-    let index = &ws.file(file).line_index;
+    let index = ws.file(file).line_index();
     analysis
         .checked
         .diagnostics
@@ -31,7 +31,7 @@ pub fn convert(
                     Some(DiagnosticRelatedInformation {
                         location: Location::new(
                             analysis.uri(l.file)?,
-                            encoding.range(&ws.file(l.file).line_index, &l.span),
+                            encoding.range(ws.file(l.file).line_index(), &l.span),
                         ),
                         message: l.message.clone(),
                     })

@@ -44,7 +44,7 @@ pub fn hints(
     within: std::ops::Range<usize>,
     encoding: Encoding,
 ) -> Vec<InlayHint> {
-    let index = &analysis.checked.ws.file(file).line_index;
+    let index = analysis.checked.ws.file(file).line_index();
     let (lo, hi) = (within.start, within.end);
     let model = &analysis.checked.model;
     let mut out = Vec::new();

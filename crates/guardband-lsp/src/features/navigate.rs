@@ -22,7 +22,7 @@ fn location(
     span: &std::ops::Range<usize>,
     encoding: Encoding,
 ) -> Option<Location> {
-    let index = &analysis.checked.ws.file(file).line_index;
+    let index = analysis.checked.ws.file(file).line_index();
     Some(Location::new(
         analysis.uri(file)?,
         encoding.range(index, span),
@@ -123,7 +123,7 @@ pub fn prepare_rename(
         locate::Hit::Reference(r) => r.span.clone(),
         _ => analysis.checked.model.definition(symbol).1,
     };
-    let index = &analysis.checked.ws.file(file).line_index;
+    let index = analysis.checked.ws.file(file).line_index();
     Some(PrepareRenameResponse::Range(encoding.range(index, &span)))
 }
 

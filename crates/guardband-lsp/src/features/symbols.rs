@@ -21,7 +21,7 @@ fn kind_of(kind: BlockKind) -> SymbolKind {
 
 #[allow(deprecated)]
 fn symbol(analysis: &Analysis, model: &Model, node: &Node, encoding: Encoding) -> DocumentSymbol {
-    let index = &analysis.checked.ws.file(node.file).line_index;
+    let index = analysis.checked.ws.file(node.file).line_index();
     DocumentSymbol {
         name: node.key().to_string(),
         detail: Some(node.keyword.to_string()),
@@ -60,7 +60,7 @@ pub fn workspace(analysis: &Analysis, query: &str, encoding: Encoding) -> Vec<Wo
         .iter()
         .filter(|n| n.path.to_lowercase().contains(&query))
         .filter_map(|n| {
-            let index = &analysis.checked.ws.file(n.file).line_index;
+            let index = analysis.checked.ws.file(n.file).line_index();
             Some(WorkspaceSymbol {
                 name: n.key().to_string(),
                 kind: kind_of(n.kind),

@@ -95,7 +95,7 @@ pub fn tokens(
             }
         }
     }
-    let index = &source.line_index;
+    let index = source.line_index();
     let (lo, hi) = match within {
         Some(r) => (r.start, r.end),
         None => (0, usize::MAX),
