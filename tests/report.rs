@@ -345,3 +345,33 @@ fn the_power_tree_chart_draws_each_supply_and_marks_a_droop_into_the_lockout() {
         "{texts:?}"
     );
 }
+
+// A droop below a drawing regulator's `supply_min` (the `rail-droop`
+// dropout fixture: 2.09 V against core's 2.3 V top edge) marks both the
+// droop and that regulator's row.
+#[test]
+fn the_power_tree_chart_marks_a_regulator_the_droop_takes_out_of_regulation() {
+    let out = temp_dir("report-power-tree-dropout");
+    let fixture = fixture("rules/rail-droop/fail_dropout.guard");
+    report(&[fixture.to_str().expect("utf-8")], &out);
+    let svg = std::fs::read_to_string(out.join("power-tree.svg")).expect("chart");
+    let doc = roxmltree::Document::parse(&svg).expect("xml");
+    let fails = |role: &str| -> Vec<Option<String>> {
+        doc.descendants()
+            .filter(|n| n.attribute("data-role") == Some(role))
+            .map(|n| n.attribute("data-fails").map(str::to_string))
+            .collect()
+    };
+    assert_eq!(
+        fails("droop"),
+        [Some("below a regulator's supply_min".to_string())]
+    );
+    assert_eq!(
+        fails("supply-min"),
+        [Some("the droop falls below it".to_string())]
+    );
+    assert!(
+        svg.contains("✗ 2.2 V .. 2.3 V (the droop falls below it)"),
+        "{svg}"
+    );
+}

@@ -113,9 +113,11 @@ fn rows(model: &Model, rails: &[Rail]) -> Vec<Row> {
                 fails: None,
             });
         }
+        let lowest = rail.droop.as_ref().ok().map(|d| d.lowest);
         for (r, _) in &rail.drawers {
             let reg = model.node(*r);
             if let Some(m) = reg.quantity("supply_min") {
+                let drops_out = lowest.is_some_and(|low| compare::below(low, m.hi));
                 rows.push(Row::Bar {
                     label: format!("{} regulates from", reg.key()),
                     kind: BarKind::Rating,
@@ -123,7 +125,7 @@ fn rows(model: &Model, rails: &[Rail]) -> Vec<Row> {
                     lo: m.lo,
                     hi: m.hi,
                     text: range(m.lo, m.hi),
-                    fails: None,
+                    fails: drops_out.then_some("the droop falls below it"),
                 });
             }
         }
