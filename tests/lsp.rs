@@ -1290,3 +1290,23 @@ fn quick_fixes_keep_the_comments_inside_what_they_rewrite() {
     );
     assert_eq!(client.stop(), Some(0));
 }
+
+// A shared supply's droop in the editor adds up every regulator drawing
+// from it, also those in files that are not open: with only sensor_rail
+// open, the hover on its `supply = tern_cell` counts radio_rail too and
+// shows the droop `guardband check` derives for the whole workspace
+// (0.104 V; 239 mA + 160 mA = 399 mA, arithmetic), not sensor_rail's alone.
+#[test]
+fn a_shared_supply_hover_counts_drawers_in_files_not_open() {
+    let (_dir, _path, text, u, mut client) =
+        open_example("lsp-shared-supply", "sensor_rail.guard", json!({}));
+    client.diagnostics(&u, 1);
+    let r = client.request(
+        "textDocument/hover",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "= tern_cell", 0, 4) }),
+    );
+    let value = r["contents"]["value"].as_str().unwrap_or("");
+    assert!(value.contains("`radio_rail` draws up to 160 mA"), "{value}");
+    assert!(value.contains("399 mA × 250 mΩ"), "{value}");
+    assert!(value.contains("0.104 V below its lowest 2.7 V"), "{value}");
+}
