@@ -113,9 +113,14 @@ impl Analysis {
         // A shared supply's droop adds up every regulator drawing from it,
         // also those in files that are not open: find them and check again
         // with them, so the editor shows what `guardband check` reports.
-        let others = co_drawers(root, &checked, &read);
-        if !others.is_empty() {
-            let mut all = entries.clone();
+        // A file found so may draw from a second supply in turn: repeat
+        // until nothing new turns up (a few rounds at most in practice).
+        let mut all = entries.clone();
+        for _ in 0..8 {
+            let others = co_drawers(root, &checked, &read);
+            if others.is_empty() {
+                break;
+            }
             all.extend(others);
             checked = guardband_check::check_workspace(root, &all, &read)
                 .map_err(|(p, e)| format!("cannot read {}: {e}", p.display()))?;
