@@ -49,6 +49,46 @@ pub(crate) fn text(x: f64, y: f64, content: &str) -> Text {
         .set("fill", "#1a1a1a")
 }
 
+/// The vertical grid lines and their tick labels from `lo` to `hi` every
+/// `step` (in the axis' units), between `top` and the axis at `axis_y`;
+/// `x_of` places a tick.
+pub(crate) fn grid(
+    mut doc: Document,
+    lo: f64,
+    hi: f64,
+    step: f64,
+    top: f64,
+    axis_y: f64,
+    x_of: &dyn Fn(f64) -> f64,
+) -> Document {
+    let mut tick = lo;
+    while tick <= hi + step * 1e-9 {
+        let x = x_of(tick);
+        doc = doc
+            .add(
+                Line::new()
+                    .set("x1", x)
+                    .set("y1", top)
+                    .set("x2", x)
+                    .set("y2", axis_y)
+                    .set("stroke", "#d0d0d0")
+                    .set("stroke-width", 1),
+            )
+            .add(
+                // Rounded to the step, so that sums of steps print clean.
+                text(
+                    x,
+                    axis_y + 18.0,
+                    &guardband_rules::show::number((tick / step).round() * step),
+                )
+                .set("text-anchor", "middle")
+                .set("data-role", "tick"),
+            );
+        tick += step;
+    }
+    doc
+}
+
 /// The chart as an SVG document.
 pub fn chart(f: &Figures) -> Document {
     let rows = f.bars.len().max(1) as f64;
@@ -131,26 +171,9 @@ pub fn chart(f: &Figures) -> Document {
 
     // Grid and axis.
     let axis_y = TOP + rows * ROW + 6.0;
-    let mut tick = 0.0;
-    while tick <= axis_max + step * 1e-9 {
-        let x = plot_left + tick / axis_max * plot_width;
-        doc = doc
-            .add(
-                Line::new()
-                    .set("x1", x)
-                    .set("y1", TOP - 6.0)
-                    .set("x2", x)
-                    .set("y2", axis_y)
-                    .set("stroke", "#d0d0d0")
-                    .set("stroke-width", 1),
-            )
-            .add(
-                text(x, axis_y + 18.0, &guardband_rules::show::number(tick))
-                    .set("text-anchor", "middle")
-                    .set("data-role", "tick"),
-            );
-        tick += step;
-    }
+    doc = grid(doc, 0.0, axis_max, step, TOP - 6.0, axis_y, &|tick| {
+        plot_left + tick / axis_max * plot_width
+    });
     let axis_label = if clipped_any {
         format!(
             "current ({}); bars ending in an arrow continue beyond the axis",

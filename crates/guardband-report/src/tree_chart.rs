@@ -6,7 +6,7 @@
 //! text, and a failing bar is marked with a cross, words and a dashed
 //! outline, so nothing depends on colour alone.
 
-use crate::chart::{colour, text, tick_step};
+use crate::chart::{colour, grid, text, tick_step};
 use crate::figures::BarKind;
 use guardband_model::Model;
 use guardband_rules::compare;
@@ -14,7 +14,7 @@ use guardband_rules::derive::rail::Rail;
 use guardband_rules::show::in_unit;
 use guardband_units::QuantityKind;
 use svg::Document;
-use svg::node::element::{Line, Rectangle, Title};
+use svg::node::element::{Rectangle, Title};
 
 const WIDTH: f64 = 920.0;
 const LABEL_WIDTH: f64 = 280.0;
@@ -184,30 +184,7 @@ pub fn chart(model: &Model, rails: &[Rail]) -> Option<Document> {
             .set("font-weight", "bold"),
         );
     let axis_y = TOP + rows.len() as f64 * ROW + 6.0;
-    let mut tick = axis_lo;
-    while tick <= axis_hi + step * 1e-9 {
-        let x = x_of(tick);
-        doc = doc
-            .add(
-                Line::new()
-                    .set("x1", x)
-                    .set("y1", TOP - 6.0)
-                    .set("x2", x)
-                    .set("y2", axis_y)
-                    .set("stroke", "#d0d0d0")
-                    .set("stroke-width", 1),
-            )
-            .add(
-                text(
-                    x,
-                    axis_y + 18.0,
-                    &guardband_rules::show::number((tick / step).round() * step),
-                )
-                .set("text-anchor", "middle")
-                .set("data-role", "tick"),
-            );
-        tick += step;
-    }
+    doc = grid(doc, axis_lo, axis_hi, step, TOP - 6.0, axis_y, &x_of);
     doc = doc.add(
         text(plot_left + plot_width / 2.0, axis_y + 42.0, "voltage (V)")
             .set("text-anchor", "middle")
