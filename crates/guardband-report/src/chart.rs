@@ -8,7 +8,7 @@ use crate::figures::{BarKind, Figures};
 use svg::Document;
 use svg::node::element::{Definitions, Line, Path, Pattern, Rectangle, Text, Title};
 
-const WIDTH: f64 = 920.0;
+pub(crate) const WIDTH: f64 = 920.0;
 const LABEL_WIDTH: f64 = 250.0;
 const VALUE_WIDTH: f64 = 250.0;
 const ROW: f64 = 30.0;
@@ -47,6 +47,37 @@ pub(crate) fn text(x: f64, y: f64, content: &str) -> Text {
         .set("font-family", FONT)
         .set("font-size", 13)
         .set("fill", "#1a1a1a")
+}
+
+/// An empty chart `WIDTH` wide: its accessible title, definitions, white
+/// ground and heading.
+pub(crate) fn frame(
+    height: f64,
+    title: &str,
+    heading: &str,
+    definitions: Option<Definitions>,
+) -> Document {
+    let mut doc = Document::new()
+        .set("viewBox", (0, 0, WIDTH, height))
+        .set("width", WIDTH)
+        .set("height", height)
+        .set("role", "img")
+        .set("aria-labelledby", "chart-title")
+        .add(Title::new(title).set("id", "chart-title"));
+    if let Some(d) = definitions {
+        doc = doc.add(d);
+    }
+    doc.add(
+        Rectangle::new()
+            .set("width", WIDTH)
+            .set("height", height)
+            .set("fill", "#ffffff"),
+    )
+    .add(
+        text(12.0, 26.0, heading)
+            .set("font-size", 16)
+            .set("font-weight", "bold"),
+    )
 }
 
 /// The vertical grid lines and their tick labels from `lo` to `hi` every
@@ -145,29 +176,12 @@ pub fn chart(f: &Figures) -> Document {
                 .set("stroke", "#ffffff")
                 .set("stroke-width", 2),
         );
-    let mut doc = Document::new()
-        .set("viewBox", (0, 0, WIDTH, height))
-        .set("width", WIDTH)
-        .set("height", height)
-        .set("role", "img")
-        .set("aria-labelledby", "chart-title")
-        .add(Title::new(format!("Currents of regulator {}", f.name)).set("id", "chart-title"))
-        .add(Definitions::new().add(hatch))
-        .add(
-            Rectangle::new()
-                .set("width", WIDTH)
-                .set("height", height)
-                .set("fill", "#ffffff"),
-        )
-        .add(
-            text(
-                12.0,
-                26.0,
-                &format!("Regulator {}: currents on one axis", f.name),
-            )
-            .set("font-size", 16)
-            .set("font-weight", "bold"),
-        );
+    let mut doc = frame(
+        height,
+        &format!("Currents of regulator {}", f.name),
+        &format!("Regulator {}: currents on one axis", f.name),
+        Some(Definitions::new().add(hatch)),
+    );
 
     // Grid and axis.
     let axis_y = TOP + rows * ROW + 6.0;

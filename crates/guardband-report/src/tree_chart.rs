@@ -6,7 +6,7 @@
 //! text, and a failing bar is marked with a cross, words and a dashed
 //! outline, so nothing depends on colour alone.
 
-use crate::chart::{colour, grid, text, tick_step};
+use crate::chart::{WIDTH, colour, frame, grid, text, tick_step};
 use crate::figures::BarKind;
 use guardband_model::Model;
 use guardband_rules::compare;
@@ -16,7 +16,6 @@ use guardband_units::QuantityKind;
 use svg::Document;
 use svg::node::element::{Rectangle, Title};
 
-const WIDTH: f64 = 920.0;
 const LABEL_WIDTH: f64 = 280.0;
 const VALUE_WIDTH: f64 = 260.0;
 const ROW: f64 = 28.0;
@@ -161,28 +160,12 @@ pub fn chart(model: &Model, rails: &[Rail]) -> Option<Document> {
     let plot_width = WIDTH - LABEL_WIDTH - VALUE_WIDTH;
     let x_of = |v: f64| plot_left + ((v - axis_lo) / (axis_hi - axis_lo)) * plot_width;
     let height = TOP + rows.len() as f64 * ROW + BOTTOM;
-    let mut doc = Document::new()
-        .set("viewBox", (0, 0, WIDTH, height))
-        .set("width", WIDTH)
-        .set("height", height)
-        .set("role", "img")
-        .set("aria-labelledby", "chart-title")
-        .add(Title::new("Shared supplies and their droop").set("id", "chart-title"))
-        .add(
-            Rectangle::new()
-                .set("width", WIDTH)
-                .set("height", height)
-                .set("fill", "#ffffff"),
-        )
-        .add(
-            text(
-                12.0,
-                26.0,
-                "Power tree: each shared supply, starting everything together",
-            )
-            .set("font-size", 16)
-            .set("font-weight", "bold"),
-        );
+    let mut doc = frame(
+        height,
+        "Shared supplies and their droop",
+        "Power tree: each shared supply, starting everything together",
+        None,
+    );
     let axis_y = TOP + rows.len() as f64 * ROW + 6.0;
     doc = grid(doc, axis_lo, axis_hi, step, TOP - 6.0, axis_y, &x_of);
     doc = doc.add(
