@@ -10,6 +10,15 @@ use lsp_client::{Client, uri};
 use serde_json::json;
 use std::path::Path;
 
+/// The words of every `<text>` of an SVG document, trimmed.
+fn texts_of<'a>(doc: &'a roxmltree::Document) -> Vec<&'a str> {
+    doc.descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .filter_map(|n| n.text())
+        .map(str::trim)
+        .collect()
+}
+
 fn report(args: &[&str], out: &Path) -> String {
     let mut all = vec!["report"];
     all.extend_from_slice(args);
@@ -54,12 +63,7 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
         );
         let svg = std::fs::read_to_string(out.join(format!("{regulator}.svg"))).expect("chart");
         let doc = roxmltree::Document::parse(&svg).unwrap_or_else(|e| panic!("{regulator}: {e}"));
-        let texts: Vec<&str> = doc
-            .descendants()
-            .filter(|n| n.has_tag_name("text"))
-            .filter_map(|n| n.text())
-            .map(str::trim)
-            .collect();
+        let texts = texts_of(&doc);
         assert!(texts.contains(&"rated load"), "{texts:?}");
         assert!(
             texts.iter().any(|t| t.starts_with("current (")),
@@ -311,12 +315,7 @@ fn the_power_tree_chart_draws_each_supply_and_marks_a_droop_into_the_lockout() {
     assert!(summary.contains("](power-tree.svg)"), "{summary}");
     let svg = std::fs::read_to_string(out.join("power-tree.svg")).expect("chart");
     let doc = roxmltree::Document::parse(&svg).expect("xml");
-    let texts: Vec<&str> = doc
-        .descendants()
-        .filter(|n| n.has_tag_name("text"))
-        .filter_map(|n| n.text())
-        .map(str::trim)
-        .collect();
+    let texts = texts_of(&doc);
     for t in ["supply ir_pack", "supply tern_cell", "voltage (V)"] {
         assert!(texts.contains(&t), "{t}: {texts:?}");
     }
