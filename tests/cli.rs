@@ -483,3 +483,50 @@ fn version_names_the_git_revision_it_was_built_from() {
         ),
     }
 }
+
+// Checking one file of a workspace still counts the other regulators on
+// its shared supply: core alone droops the cell to 3.0 − 0.9 A × 0.6 Ω −
+// 1 µH × 0.9 A / 20 µs = 2.415 V, above the 2.346 V lockout top; with io's
+// 0.5 A also starting, 3.0 − 1.4 × 0.6 − 1 µH × 1.4 A / 20 µs = 2.09 V, below
+// it (Ohm's law and V = L·di/dt, arithmetic). io.guard's own findings are
+// not reported: it was read only for its regulator.
+#[test]
+fn one_file_checked_counts_the_other_regulators_on_its_supply() {
+    let dir = temp_dir("one-file-shared-supply");
+    let supply = "supply cell {\n    voltage    = 3.0 V .. 4.2 V\n    resistance = 0.5 ohm ± 20 %\n    inductance = 1 uH\n    rise_time  = 20 us\n    lockout    = 2.3 V ± 2 %\n}\n";
+    let regulator = |name: &str, output: &str, full_gate: &str| {
+        format!(
+            "use \"cell.guard\"\n\nregulator {name} {{\n    supply = cell\n    output = {output}\n    load   = 0 mA .. 100 mA\n    pin vout {{ role = output  capacitance = 10 uF ± 20 % }}\n    pass {{ full_gate_current = {full_gate}  amplifier_drive = 30 uA ± 25 % }}\n    startup {{ load = 1 mA }}\n}}\n"
+        )
+    };
+    std::fs::write(dir.join("cell.guard"), supply).expect("write");
+    std::fs::write(
+        dir.join("core.guard"),
+        regulator("core", "1.8 V ± 2 %", "0.3 A .. 0.9 A"),
+    )
+    .expect("write");
+    std::fs::write(
+        dir.join("io.guard"),
+        regulator("io", "1.2 V ± 2 %", "0.3 A .. 0.5 A"),
+    )
+    .expect("write");
+    let (_, alone) = check_json(&dir, &["core.guard"]);
+    let droops: Vec<&serde_json::Value> = alone["diagnostics"]
+        .as_array()
+        .expect("diagnostics")
+        .iter()
+        .filter(|d| d["rule"] == "rail-droop")
+        .collect();
+    assert_eq!(droops.len(), 1, "{alone:#}");
+    let message = droops[0]["message"].as_str().unwrap_or("");
+    assert!(message.contains("`core` and `io`"), "{message}");
+    assert!(message.contains("to 2.09 V"), "{message}");
+    assert!(
+        alone["diagnostics"]
+            .as_array()
+            .expect("diagnostics")
+            .iter()
+            .all(|d| d["file"] != "io.guard"),
+        "{alone:#}"
+    );
+}

@@ -88,12 +88,49 @@ pub fn check_each(
     // Entries on a shared supply are checked once more, together, and
     // their single-file units (with partial droops) are dropped.
     if !entries.is_empty() {
-        let groups = shared_supply_groups(&units);
+        // Files of the workspace that were not asked for but may draw from
+        // the same supplies: their regulators count in the droop.
+        let names: Vec<String> = units
+            .iter()
+            .flat_map(|u| u.supplies.iter().map(|(_, n)| n.clone()))
+            .collect::<HashSet<_>>()
+            .into_iter()
+            .collect();
+        let known: HashSet<PathBuf> = units
+            .iter()
+            .flat_map(|u| u.guard_files.iter().cloned())
+            .collect();
+        let outside = crate::drawers::files_naming(
+            root,
+            &names,
+            &known,
+            read,
+            config_file.limits().max_file_bytes,
+        );
+        let groups = shared_supply_groups(&units, &outside);
         let mut dropped = vec![false; units.len()];
         let mut together = Vec::new();
         for group in groups {
-            let group_entries: Vec<PathBuf> = group.iter().map(|i| entries[*i].clone()).collect();
-            together.push(check_one(root, &group_entries, read, config_file)?);
+            let group_names: HashSet<&str> = group
+                .iter()
+                .flat_map(|i| units[*i].supplies.iter().map(|(_, n)| n.as_str()))
+                .collect();
+            let mut group_entries: Vec<PathBuf> =
+                group.iter().map(|i| entries[*i].clone()).collect();
+            group_entries.extend(
+                outside
+                    .iter()
+                    .filter(|(_, named)| named.iter().any(|n| group_names.contains(n.as_str())))
+                    .map(|(p, _)| p.clone()),
+            );
+            let asked: HashSet<PathBuf> = group
+                .iter()
+                .flat_map(|i| units[*i].guard_files.iter().cloned())
+                .collect();
+            together.push(restricted(
+                check_one(root, &group_entries, read, config_file)?,
+                &asked,
+            ));
             for i in group {
                 dropped[i] = true;
             }
@@ -114,9 +151,38 @@ pub fn check_each(
     Ok(merged.finish(root, config.unwrap_or_default()))
 }
 
-/// The entries (by index) that share a `supply` item with another entry,
-/// in groups joined through any supply they have in common.
-fn shared_supply_groups(units: &[Unit]) -> Vec<Vec<usize>> {
+/// A check of more files than were asked for, reduced to the findings in
+/// the files asked for (and their imports): the others were read only for
+/// the regulators they add to a shared rail.
+fn restricted(mut unit: Unit, asked: &HashSet<PathBuf>) -> Unit {
+    // The configuration's own problems are kept too.
+    let in_asked = |id: FileId| {
+        unit.config.file == Some(id)
+            || unit
+                .files
+                .get(id.0 as usize)
+                .and_then(Option::as_ref)
+                .is_some_and(|f| asked.contains(&f.path))
+    };
+    let kept: Vec<Diagnostic> = unit
+        .diagnostics
+        .iter()
+        .filter(|d| in_asked(d.file))
+        .cloned()
+        .collect();
+    unit.diagnostics = kept;
+    unit.guard_files.retain(|p| asked.contains(p));
+    unit
+}
+
+/// The entries (by index) that share a `supply` item with another entry or
+/// with a file outside the entries (`outside`, each with the supply names
+/// it holds), in groups joined through any supply they have in common.
+fn shared_supply_groups(units: &[Unit], outside: &[(PathBuf, Vec<String>)]) -> Vec<Vec<usize>> {
+    let named_outside: HashSet<&str> = outside
+        .iter()
+        .flat_map(|(_, names)| names.iter().map(String::as_str))
+        .collect();
     // Union-find over the units, joined by each supply's first user.
     let mut parent: Vec<usize> = (0..units.len()).collect();
     fn root(parent: &mut [usize], mut i: usize) -> usize {
@@ -145,7 +211,18 @@ fn shared_supply_groups(units: &[Unit]) -> Vec<Vec<usize>> {
         let r = root(&mut parent, i);
         groups.entry(r).or_default().push(i);
     }
-    let mut out: Vec<Vec<usize>> = groups.into_values().filter(|g| g.len() > 1).collect();
+    let mut out: Vec<Vec<usize>> = groups
+        .into_values()
+        .filter(|g| {
+            g.len() > 1
+                || g.iter().any(|i| {
+                    units[*i]
+                        .supplies
+                        .iter()
+                        .any(|(_, n)| named_outside.contains(n.as_str()))
+                })
+        })
+        .collect();
     out.sort();
     out
 }
@@ -321,10 +398,18 @@ mod tests {
     fn compare(root: &Path, entries: &[PathBuf]) -> usize {
         let read = guardband_model::read_source;
         let whole = check_workspace(root, entries, &read).expect("whole check");
-        let mut expected: Vec<String> = whole
+        // With the workspace's other regulators on a shared supply counted,
+        // as the server checks, reduced to the files asked about.
+        let asked: HashSet<&Path> = whole.ws.files.iter().map(|f| f.path.as_path()).collect();
+        let wider = crate::check_with_co_drawers(root, entries, &read).expect("wider check");
+        let mut expected: Vec<String> = wider
             .diagnostics
             .iter()
-            .map(|d| described(&whole.ws, d))
+            .filter(|d| {
+                asked.contains(wider.ws.file(d.file).path.as_path())
+                    || wider.config.file == Some(d.file)
+            })
+            .map(|d| described(&wider.ws, d))
             .collect();
         for threads in [1, 2] {
             let each = check_each(root, entries, &read, threads, 64 << 20).expect("check each");

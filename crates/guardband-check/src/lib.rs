@@ -7,6 +7,7 @@
 
 pub mod batch;
 pub mod config;
+pub mod drawers;
 mod root;
 
 pub use batch::{Findings, check_each};
@@ -98,6 +99,39 @@ pub fn check_with_config_file(
         rails,
         diagnostics,
     })
+}
+
+/// [`check_workspace`] of `entries` and of every other spec file under
+/// `root` that may draw from a `supply` item one of their regulators draws
+/// from (repeated while a file so found leads to a further supply), so a
+/// shared rail's droop counts every regulator on it. Findings in the added
+/// files are in the result too; front ends show those of the files they
+/// were asked about.
+pub fn check_with_co_drawers(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+) -> Result<Checked, (PathBuf, std::io::Error)> {
+    let mut checked = check_workspace(root, entries, read)?;
+    let mut all = entries.to_vec();
+    for _ in 0..8 {
+        let names: Vec<String> = checked
+            .rails
+            .iter()
+            .filter(|r| !r.drawers.is_empty())
+            .map(|r| checked.model.node(r.supply).key().to_string())
+            .collect();
+        let loaded: std::collections::HashSet<PathBuf> =
+            checked.ws.files.iter().map(|f| f.path.clone()).collect();
+        let limit = checked.config.limits.max_file_bytes;
+        let others = drawers::files_naming(root, &names, &loaded, read, limit);
+        if others.is_empty() {
+            break;
+        }
+        all.extend(others.into_iter().map(|(p, _)| p));
+        checked = check_workspace(root, &all, read)?;
+    }
+    Ok(checked)
 }
 
 /// The order every front end shows findings in: by file (display path),

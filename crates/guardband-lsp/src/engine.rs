@@ -19,75 +19,6 @@ pub struct Analysis {
     pub uris: HashMap<PathBuf, tower_lsp_server::ls_types::Uri>,
 }
 
-/// Most spec files walked when looking for other regulators on a shared
-/// supply, and the deepest folder nesting walked.
-const MAX_WALKED: usize = 10_000;
-const MAX_DEPTH: usize = 32;
-
-/// The spec files under `root`, not already in the check, that may draw
-/// from a `supply` item one of its regulators draws from: every `.guard`
-/// file whose text names that supply (a superset, settled by the check
-/// itself). Empty when no regulator in the check names a supply.
-fn co_drawers(root: &Path, checked: &Checked, read: &guardband_model::Read) -> Vec<PathBuf> {
-    let names: Vec<&str> = checked
-        .rails
-        .iter()
-        .filter(|r| !r.drawers.is_empty())
-        .map(|r| checked.model.node(r.supply).key())
-        .collect();
-    if names.is_empty() {
-        return Vec::new();
-    }
-    let loaded: std::collections::HashSet<&Path> =
-        checked.ws.files.iter().map(|f| f.path.as_path()).collect();
-    let mut files = Vec::new();
-    walk_specs(root, 0, &mut files);
-    let limit = checked.config.limits.max_file_bytes;
-    files
-        .into_iter()
-        .filter(|p| !loaded.contains(p.as_path()))
-        .filter(|p| {
-            read(p, limit).is_ok_and(|bytes| {
-                let text = String::from_utf8_lossy(&bytes);
-                text.contains("supply") && names.iter().any(|n| text.contains(n))
-            })
-        })
-        .collect()
-}
-
-/// Every `.guard` file under `dir` (canonical paths), skipping hidden
-/// folders and `target`, never following links to folders.
-fn walk_specs(dir: &Path, depth: usize, out: &mut Vec<PathBuf>) {
-    if depth > MAX_DEPTH || out.len() >= MAX_WALKED {
-        return;
-    }
-    let Ok(entries) = std::fs::read_dir(dir) else {
-        return;
-    };
-    let mut entries: Vec<_> = entries.flatten().collect();
-    entries.sort_by_key(|e| e.file_name());
-    for entry in entries {
-        let Ok(kind) = entry.file_type() else {
-            continue;
-        };
-        let path = entry.path();
-        let name = entry.file_name();
-        let name = name.to_string_lossy();
-        if kind.is_dir() {
-            if !name.starts_with('.') && name != "target" {
-                walk_specs(&path, depth + 1, out);
-            }
-        } else if kind.is_file() && path.extension().is_some_and(|e| e == "guard") {
-            if let Ok(p) = path.canonicalize() {
-                out.push(p);
-            }
-            if out.len() >= MAX_WALKED {
-                return;
-            }
-        }
-    }
-}
-
 impl Analysis {
     /// Checks the open `documents` under `root` (other files come from disk).
     pub fn compute(root: &Path, documents: &[Document]) -> Result<Analysis, String> {
@@ -108,23 +39,11 @@ impl Analysis {
             .filter(|d| d.path.extension().is_some_and(|e| e == "guard"))
             .map(|d| d.path.clone())
             .collect();
-        let mut checked = guardband_check::check_workspace(root, &entries, &read)
-            .map_err(|(p, e)| format!("cannot read {}: {e}", p.display()))?;
         // A shared supply's droop adds up every regulator drawing from it,
-        // also those in files that are not open: find them and check again
-        // with them, so the editor shows what `guardband check` reports.
-        // A file found so may draw from a second supply in turn: repeat
-        // until nothing new turns up (a few rounds at most in practice).
-        let mut all = entries.clone();
-        for _ in 0..8 {
-            let others = co_drawers(root, &checked, &read);
-            if others.is_empty() {
-                break;
-            }
-            all.extend(others);
-            checked = guardband_check::check_workspace(root, &all, &read)
-                .map_err(|(p, e)| format!("cannot read {}: {e}", p.display()))?;
-        }
+        // also those in files that are not open: they are checked too, so
+        // the editor shows what `guardband check` reports.
+        let checked = guardband_check::check_with_co_drawers(root, &entries, &read)
+            .map_err(|(p, e)| format!("cannot read {}: {e}", p.display()))?;
         Ok(Analysis {
             root: root.to_path_buf(),
             checked,
