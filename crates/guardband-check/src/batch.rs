@@ -111,26 +111,15 @@ pub fn check_each(
         let mut dropped = vec![false; units.len()];
         let mut together = Vec::new();
         for group in groups {
-            let group_names: HashSet<&str> = group
-                .iter()
-                .flat_map(|i| units[*i].supplies.iter().map(|(_, n)| n.as_str()))
-                .collect();
-            let mut group_entries: Vec<PathBuf> =
-                group.iter().map(|i| entries[*i].clone()).collect();
-            group_entries.extend(
-                outside
-                    .iter()
-                    .filter(|(_, named)| named.iter().any(|n| group_names.contains(n.as_str())))
-                    .map(|(p, _)| p.clone()),
-            );
+            let group_entries: Vec<PathBuf> = group.iter().map(|i| entries[*i].clone()).collect();
             let asked: HashSet<PathBuf> = group
                 .iter()
                 .flat_map(|i| units[*i].guard_files.iter().cloned())
                 .collect();
-            together.push(restricted(
-                check_one(root, &group_entries, read, config_file)?,
-                &asked,
-            ));
+            // Widened to the workspace's other files on these supplies
+            // (and any further supply those lead to), as the server checks.
+            let checked = crate::widened(root, &group_entries, read, config_file)?;
+            together.push(restricted(unit_of(checked), &asked));
             for i in group {
                 dropped[i] = true;
             }
@@ -235,7 +224,16 @@ fn check_one(
     read: &guardband_model::Read,
     config_file: &ConfigFile,
 ) -> Result<Unit, (PathBuf, std::io::Error)> {
-    let checked = check_with_config_file(root, entries, read, config_file)?;
+    Ok(unit_of(check_with_config_file(
+        root,
+        entries,
+        read,
+        config_file,
+    )?))
+}
+
+/// One check reduced to what outlives it.
+fn unit_of(checked: crate::Checked) -> Unit {
     let supplies = checked
         .model
         .regulators()
@@ -276,13 +274,13 @@ fn check_one(
             })
         })
         .collect();
-    Ok(Unit {
+    Unit {
         files,
         diagnostics: checked.diagnostics,
         config: checked.config,
         guard_files,
         supplies,
-    })
+    }
 }
 
 /// The findings of the units seen so far, with their files renumbered.

@@ -112,7 +112,19 @@ pub fn check_with_co_drawers(
     entries: &[PathBuf],
     read: &guardband_model::Read,
 ) -> Result<Checked, (PathBuf, std::io::Error)> {
-    let mut checked = check_workspace(root, entries, read)?;
+    let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    let config_file = ConfigFile::read(&root, read);
+    widened(&root, entries, read, &config_file)
+}
+
+/// [`check_with_co_drawers`] with the configuration read already.
+pub(crate) fn widened(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+    config_file: &ConfigFile,
+) -> Result<Checked, (PathBuf, std::io::Error)> {
+    let mut checked = check_with_config_file(root, entries, read, config_file)?;
     let mut all = entries.to_vec();
     for _ in 0..8 {
         let names: Vec<String> = checked
@@ -129,7 +141,7 @@ pub fn check_with_co_drawers(
             break;
         }
         all.extend(others.into_iter().map(|(p, _)| p));
-        checked = check_workspace(root, &all, read)?;
+        checked = check_with_config_file(root, &all, read, config_file)?;
     }
     Ok(checked)
 }
