@@ -153,13 +153,7 @@ fn restricted(mut unit: Unit, asked: &HashSet<PathBuf>) -> Unit {
                 .and_then(Option::as_ref)
                 .is_some_and(|f| asked.contains(&f.path))
     };
-    let kept: Vec<Diagnostic> = unit
-        .diagnostics
-        .iter()
-        .filter(|d| in_asked(d.file))
-        .cloned()
-        .collect();
-    unit.diagnostics = kept;
+    unit.diagnostics.retain(|d| in_asked(d.file));
     unit.guard_files.retain(|p| asked.contains(p));
     unit
 }
