@@ -288,6 +288,27 @@ fn hover_shows_values_windows_and_conductor_breakdowns() {
             "short-to-supply hover lacks `{want}`:\n{to_cell}"
         );
     }
+    // With named corners the limit shows its window at each corner: the
+    // 150 ppm/K reference is lowest where the die is coldest, at `strong`
+    // (-20 °C); both corners' dies reach 125 °C, so the top is alike.
+    let limit = hover(&mut client, pos16(&text, "limit sensed", 0, 8));
+    for want in [
+        "**At each corner**",
+        "`weak` ",
+        "`strong` ",
+        "lowest at `strong`, highest at `weak`, `strong`",
+    ] {
+        assert!(limit.contains(want), "limit hover lacks `{want}`:\n{limit}");
+    }
+    // A value written in a corner's block shows itself at that corner, with
+    // the pass device's figures there.
+    let weak = hover(&mut client, pos16(&text, "0.35 A .. 0.7 A", 0, 2));
+    assert!(
+        weak.contains("`sensor_rail.pass.full_gate_current`** at corner `weak`")
+            && weak.contains("0.35 A")
+            && weak.contains("0.7 A"),
+        "{weak}"
+    );
     // The thermal shutdown shows the junction at rated load beside the fault heat.
     let shutdown = hover(&mut client, pos16(&text, "thermal_shutdown {", 0, 3));
     for want in [
@@ -391,14 +412,16 @@ fn definition_references_and_rename_across_imports() {
         json!({ "textDocument": doc(&u), "position": pos16(&text, "process/wren180", 0, 2) }),
     );
     assert_eq!(used["uri"], uri(&process).as_str());
-    // References of the limit `sensed`: its name and the analysis' `loop = sensed`.
+    // References of the limit `sensed`: its name and the analysis' `loop = sensed`
+    // (the copies of the regulator at its two corners add none).
     let refs = client.request(
         "textDocument/references",
         json!({ "textDocument": doc(&u), "position": pos16(&text, "limit sensed", 0, 7), "context": { "includeDeclaration": true } }),
     );
     let refs = refs.as_array().expect("refs");
     assert_eq!(refs.len(), 2, "{refs:?}");
-    // Rename the pin `vout`: its name, `pin = vout` three times, `carries = vout` twice and `force vout`.
+    // Rename the pin `vout`: its name, `pin = vout` three times, `carries = vout` twice and `force vout`,
+    // each once though the corners copy them.
     let prepare = client.request(
         "textDocument/prepareRename",
         json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5) }),
@@ -481,6 +504,18 @@ fn completion_offers_fields_units_names_and_choices() {
     for unwanted in ["fixed_current", "threshold_voltage", "trip_current"] {
         assert!(!fields.contains(&unwanted.to_string()), "{fields:?}");
     }
+    // In a corner: its conditions and the blocks it may restate; in its
+    // `pass { }`, the pass device's fields.
+    let corner = labels(&mut client, pos16(&text, "        process = slow", 0, 0));
+    for want in ["ambient", "supply", "process", "pass", "limit"] {
+        assert!(corner.contains(&want.to_string()), "{corner:?}");
+    }
+    let pass = labels(
+        &mut client,
+        pos16(&text, "full_gate_current = 0.35 A .. 0.7 A", 0, 0),
+    );
+    assert!(pass.contains(&"amplifier_drive".to_string()), "{pass:?}");
+    assert!(!pass.contains(&"process".to_string()), "{pass:?}");
     // After `scheme = `: the schemes.
     let choices = labels(
         &mut client,

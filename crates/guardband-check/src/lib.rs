@@ -32,6 +32,9 @@ pub struct Checked {
     pub model: Model,
     /// One entry per regulator, in the order of [`Model::regulators`].
     pub derived: Vec<Derived>,
+    /// One entry per regulator and named corner, in the order of
+    /// [`Model::variants`] (so by node id): each derived at its corner.
+    pub corners: Vec<Derived>,
     /// Every `supply` item with the regulators drawing from it and its droop.
     pub rails: Vec<guardband_rules::derive::rail::Rail>,
     /// Every finding, spans normalised, sorted by [`sort_diagnostics`].
@@ -50,6 +53,21 @@ impl Checked {
     /// The derivation of the regulator with this node id.
     pub fn derived_for(&self, regulator: guardband_model::NodeId) -> Option<&Derived> {
         guardband_rules::derive::derived_of(&self.derived, regulator)
+    }
+
+    /// The derivations of a regulator at each of its named corners, with
+    /// each corner's block, in the order written (empty without corners).
+    pub fn corners_of(
+        &self,
+        regulator: guardband_model::NodeId,
+    ) -> Vec<(&guardband_model::Node, &Derived)> {
+        self.model
+            .variants_of(regulator)
+            .filter_map(|v| {
+                let d = guardband_rules::derive::derived_of(&self.corners, v.root)?;
+                Some((self.model.node(v.corner), d))
+            })
+            .collect()
     }
 }
 
@@ -84,9 +102,21 @@ pub fn check_with_config_file(
         .regulators()
         .map(|r| guardband_rules::derive(&model, r, &config.options))
         .collect();
+    let corners: Vec<Derived> = model
+        .variants
+        .iter()
+        .map(|v| guardband_rules::derive(&model, model.node(v.root), &config.options))
+        .collect();
     let rails = guardband_rules::derive::rail::rails(&model, &derived);
-    let mut diagnostics =
-        guardband_rules::lint(&ws, &model, &config.options, &derived, &rails, diagnostics);
+    let mut diagnostics = guardband_rules::lint(
+        &ws,
+        &model,
+        &config.options,
+        &derived,
+        &corners,
+        &rails,
+        diagnostics,
+    );
     ws.normalize_spans(&mut diagnostics);
     sort_diagnostics(&ws, &mut diagnostics);
     let diagnostics =
@@ -96,6 +126,7 @@ pub fn check_with_config_file(
         config,
         model,
         derived,
+        corners,
         rails,
         diagnostics,
     })

@@ -2,7 +2,7 @@
 //! and duplicates against the schema. Values are evaluated afterwards.
 
 use crate::model::{Field, Model, Node, NodeId};
-use crate::schema::{self, BlockSpec};
+use crate::schema::{self, BlockKind, BlockSpec};
 use crate::suggest::did_you_mean;
 use crate::{Diagnostic, FileId, Workspace};
 use guardband_syntax::{Block, Item, Member, Relation};
@@ -17,6 +17,9 @@ pub fn build(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) -> Model {
                 Some(spec) => {
                     let id = add_block(&mut model, file.id, spec, block, None, diagnostics);
                     model.items.push(id);
+                    if spec.kind == BlockKind::Regulator {
+                        crate::corners::add_variants(&mut model, file.id, id, block, diagnostics);
+                    }
                 }
                 None => {
                     let mut d = Diagnostic::error(
@@ -52,7 +55,7 @@ fn header_span(block: &Block) -> guardband_syntax::Span {
 /// Adds `block` (and, recursively, its children) as a node of `spec`'s
 /// kind under `parent`: checks its name, then each member against the
 /// schema and against the members before it.
-fn add_block(
+pub(crate) fn add_block(
     model: &mut Model,
     file: FileId,
     spec: &'static BlockSpec,
@@ -101,6 +104,11 @@ fn add_block(
                     taken.second(file, (&b.key().text, None), &b.key().span, !child.named)
                 {
                     diagnostics.push(d);
+                    continue;
+                }
+                // A corner's blocks restate the regulator's: they are built
+                // into the corner's copy of the regulator (`corners.rs`).
+                if spec.kind == BlockKind::Corner {
                     continue;
                 }
                 let child_id = add_block(model, file, child, b, Some(id), diagnostics);
@@ -191,6 +199,7 @@ fn push_node(
         ),
         children: Vec::new(),
         path,
+        at_corner: None,
     });
     id
 }

@@ -109,6 +109,25 @@ pub fn evaluate(
     refs.dedup();
 }
 
+/// The symbol as written that `target` (maybe in a corner's copy) stands for:
+/// the written node, and its field of the same key when it has one.
+fn written_symbol(model: &Model, target: Symbol) -> Symbol {
+    match target {
+        Symbol::Node(n) => Symbol::Node(model.written_of(n)),
+        Symbol::Field(n, i) => {
+            let w = model.written_of(n);
+            if w == n {
+                return target;
+            }
+            let key = &model.node(n).fields[i].key;
+            match model.node(w).fields.iter().position(|f| f.key == *key) {
+                Some(j) => Symbol::Field(w, j),
+                None => target,
+            }
+        }
+    }
+}
+
 /// The help for a value in the wrong unit: the usual spellings of each
 /// kind the field accepts.
 fn unit_help(kinds: &[QuantityKind]) -> String {
@@ -1106,13 +1125,12 @@ impl<'a> Evaluator<'a> {
     /// Keeps the resolved segments of a path for navigation.
     fn record(&mut self, from: NodeId, trail: Vec<(Span, Symbol)>) {
         let file = self.file_of(from);
-        self.model
-            .references
-            .extend(
-                trail
-                    .into_iter()
-                    .map(|(span, target)| Reference { file, span, target }),
-            );
+        let model = &mut *self.model;
+        for (span, target) in trail {
+            // A name read in a corner's copy points at what is written.
+            let target = written_symbol(model, target);
+            model.references.push(Reference { file, span, target });
+        }
     }
 
     /// Resolves a dotted path from `from`, reporting an unknown name.

@@ -5,6 +5,7 @@
 //! The model never sees an LSP position or a terminal; spans are bytes.
 
 mod build;
+mod corners;
 mod diagnostic;
 mod eval;
 pub mod form;
@@ -19,7 +20,7 @@ mod workspace;
 pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Remedy, Severity};
 pub use eval::visible_items;
 pub use limits::Limits;
-pub use model::{Field, FieldValue, Model, Node, NodeId, Reference, Symbol};
+pub use model::{CornerOf, Field, FieldValue, Model, Node, NodeId, Reference, Symbol, Variant};
 pub use read::{is_link_loop, read_source};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
@@ -55,5 +56,9 @@ pub fn check_with(ws: &Workspace, limits: &Limits) -> (Model, Vec<Diagnostic>) {
     }
     let mut model = build::build(ws, &mut diagnostics);
     eval::evaluate(ws, &mut model, &mut diagnostics, limits.max_eval_steps);
+    if !model.variants.is_empty() {
+        corners::settle(&mut model);
+        corners::drop_repeats(&mut diagnostics);
+    }
     (model, diagnostics)
 }

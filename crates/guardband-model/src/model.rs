@@ -78,6 +78,32 @@ pub struct Node {
     pub children: Vec<NodeId>,
     /// Dotted path from the item, e.g. `probe_rail.sensed`.
     pub path: CompactString,
+    /// For a node of a regulator as it is at a named corner: the node as
+    /// written that it stands for, and the `corner` block. `None` for
+    /// every node as written.
+    pub at_corner: Option<CornerOf>,
+}
+
+/// Where a node of a corner variant comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct CornerOf {
+    /// The node as written with the same path.
+    pub written: NodeId,
+    /// The `corner` block of the regulator.
+    pub corner: NodeId,
+}
+
+/// A regulator at one of its named corners: a copy of its tree with the
+/// corner's fields and blocks in place of its own, derived and checked
+/// like a regulator of its own.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Variant {
+    /// The regulator as written.
+    pub regulator: NodeId,
+    /// Its `corner` block.
+    pub corner: NodeId,
+    /// The root of the copy.
+    pub root: NodeId,
 }
 
 impl Node {
@@ -160,12 +186,47 @@ pub struct Model {
     pub items: Vec<NodeId>,
     /// Every tolerance or range stated anywhere, indexed by [`crate::SourceId`].
     pub sources: Vec<ToleranceSource>,
+    /// Each regulator at each of its named corners, in the order written.
+    pub variants: Vec<Variant>,
 }
 
 impl Model {
     /// The node with this id.
     pub fn node(&self, id: NodeId) -> &Node {
         &self.nodes[id.0 as usize]
+    }
+
+    /// The nodes as written, without the copies made for named corners:
+    /// what editors list, colour and point at.
+    pub fn written(&self) -> impl Iterator<Item = &Node> {
+        self.nodes.iter().filter(|n| n.at_corner.is_none())
+    }
+
+    /// The node as written that `id` stands for (itself when it is written).
+    pub fn written_of(&self, id: NodeId) -> NodeId {
+        self.node(id).at_corner.map_or(id, |c| c.written)
+    }
+
+    /// The variants of a regulator, one per named corner, in the order written.
+    pub fn variants_of(&self, regulator: NodeId) -> impl Iterator<Item = &Variant> {
+        self.variants
+            .iter()
+            .filter(move |v| v.regulator == regulator)
+    }
+
+    /// The corner a node of a variant is at.
+    pub fn corner_of(&self, id: NodeId) -> Option<&Node> {
+        self.node(id).at_corner.map(|c| self.node(c.corner))
+    }
+
+    /// Whether the field `key` of a variant's node is written in its
+    /// `corner` block (not inherited from the regulator): the corner's own
+    /// conditions, exact on purpose, and what it restates.
+    pub fn set_by_corner(&self, node: &Node, key: &str) -> bool {
+        let (Some(corner), Some(field)) = (self.corner_of(node.id), node.field(key)) else {
+            return false;
+        };
+        corner.span.start <= field.span.start && field.span.end <= corner.span.end
     }
 
     /// Top-level items of one kind.

@@ -23,6 +23,9 @@ pub enum BlockKind {
     Conductor,
     Fault,
     Analysis,
+    /// A named operating corner of a regulator: its ambient, supply and
+    /// process, and the values that differ there.
+    Corner,
 }
 
 /// What a field's value must be.
@@ -125,6 +128,21 @@ pub const WIRE_MATERIALS: &[&str] = &["copper", "aluminium", "gold"];
 /// The choices of `pin.role`.
 pub const PIN_ROLES: &[&str] = &["output", "supply", "ground", "other"];
 /// The choices of `fault.event`.
+/// The choices of `corner.process`: a label of the process corner; the
+/// values that differ there are written in the corner's blocks.
+pub const PROCESS_CORNERS: &[&str] = &["slow", "typical", "fast"];
+/// The blocks a `corner` may restate: the regulator's own, except pins,
+/// conductors, fault cases and analyses, whose data does not move with the
+/// operating point.
+pub const CORNER_OVERRIDES: &[BlockKind] = &[
+    BlockKind::Pass,
+    BlockKind::Limit,
+    BlockKind::ThermalShutdown,
+    BlockKind::Hiccup,
+    BlockKind::Foldback,
+    BlockKind::Startup,
+];
+/// The choices of `fault.event`.
 pub const EVENTS: &[&str] = &[
     "short_to_ground",
     "short_to_supply",
@@ -184,6 +202,7 @@ pub const BLOCKS: &[BlockSpec] = &[
             BlockKind::Conductor,
             BlockKind::Fault,
             BlockKind::Analysis,
+            BlockKind::Corner,
         ],
         fields: &[
             f(
@@ -760,6 +779,46 @@ pub const BLOCKS: &[BlockSpec] = &[
                 FieldType::Quantity(QuantityKind::of(Dimension::LEVEL)),
                 true,
                 "required gain margin",
+            ),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Corner,
+        keyword: "corner",
+        named: true,
+        doc: "a named operating corner: the regulator is derived and checked at each of its corners, with the fields and blocks written here in place of its own",
+        children: CORNER_OVERRIDES,
+        fields: &[
+            f(
+                "ambient",
+                ABS_TEMP,
+                "ambient temperature at this corner (a value or a range inside the regulator's)",
+            ),
+            f(
+                "supply",
+                VOLTAGE,
+                "input supply at this corner (a value or a range inside the regulator's)",
+            ),
+            f(
+                "process",
+                FieldType::Choice(PROCESS_CORNERS),
+                "the process corner, a label: write the values that differ there in this corner's blocks",
+            ),
+            f(
+                "load",
+                LOAD,
+                "the load at this corner, inside the regulator's",
+            ),
+            f(
+                "quiescent",
+                CURRENT,
+                "the regulator's own supply current at this corner",
+            ),
+            f(
+                "theta_ja",
+                q(Dimension::THERMAL_RESISTANCE),
+                "junction-to-ambient thermal resistance at this corner",
             ),
             DESCRIPTION,
         ],

@@ -159,6 +159,7 @@ pub fn render(checked: &Checked, chart_out: &mut dyn FnMut(&str, &str)) -> Strin
                 row.basis.replace('|', "\\|")
             );
         }
+        corner_table(checked, reg, &mut md);
         let _ = writeln!(md, "\n### Fault coverage\n");
         md.push_str(&coverage::matrix(model, reg));
         let _ = writeln!(md, "\n### Open findings\n");
@@ -182,6 +183,50 @@ pub fn render(checked: &Checked, chart_out: &mut dyn FnMut(&str, &str)) -> Strin
         }
     }
     md
+}
+
+/// A regulator with named corners: each derived figure at each corner,
+/// one column per corner, and which corner is worst. A figure a corner
+/// lacks ("none": no cycling where the short stays below the trip point)
+/// is one that does not arise there; one that could not be derived has a
+/// "not derived" row of its own.
+fn corner_table(checked: &Checked, reg: &guardband_model::Node, md: &mut String) {
+    let corners = checked.corners_of(reg.id);
+    if corners.is_empty() {
+        return;
+    }
+    let rows = guardband_rules::derive::view::corner_rows(
+        &checked.model,
+        &checked.config.options,
+        &corners,
+    );
+    let names: Vec<String> = corners
+        .iter()
+        .map(|(c, _)| format!("`{}`", c.key()))
+        .collect();
+    let _ = writeln!(
+        md,
+        "\n### At each corner\n\nChecked at each named corner instead of over the box above.\n\n| quantity | {} | worst |\n|---|{}---|",
+        names.join(" | "),
+        "---|".repeat(names.len())
+    );
+    for r in rows {
+        let cells: Vec<String> = corners
+            .iter()
+            .map(|(c, _)| {
+                r.at.iter()
+                    .find(|(n, _)| n == c.key())
+                    .map_or("none".to_string(), |(_, v)| v.replace('|', "\\|"))
+            })
+            .collect();
+        let _ = writeln!(
+            md,
+            "| {} | {} | {} |",
+            r.label.replace('|', "\\|"),
+            cells.join(" | "),
+            r.worst.as_deref().unwrap_or("")
+        );
+    }
 }
 
 /// Each finding under the regulator whose block holds it (one list per

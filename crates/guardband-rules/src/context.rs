@@ -15,6 +15,9 @@ pub struct Context<'a> {
     pub derived: &'a [Derived],
     /// Every shared supply rail with its drawers and droop.
     pub rails: &'a [crate::derive::rail::Rail],
+    /// Every regulator's named corners, for the rules about corners
+    /// themselves (empty in the runs at one corner).
+    pub variants: &'a [guardband_model::Variant],
     /// The rule being run.
     pub rule: &'static RuleInfo,
 }
@@ -23,6 +26,15 @@ impl<'a> Context<'a> {
     /// The node with this id.
     pub fn node(&self, id: NodeId) -> &'a Node {
         self.model.node(id)
+    }
+
+    /// The regulators this run checks: those of [`Context::derived`]. A
+    /// regulator with named corners is checked once per corner, as its
+    /// copy at that corner, so rules iterate these and never
+    /// `Model::regulators`.
+    pub fn regulators(&self) -> impl Iterator<Item = &'a Node> + 'a {
+        let model = self.model;
+        self.derived.iter().map(move |d| model.node(d.regulator))
     }
 
     /// The span of a field's value, or of the block header when it is missing.

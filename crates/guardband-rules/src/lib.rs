@@ -10,6 +10,7 @@
 
 pub mod compare;
 pub mod context;
+mod corner_findings;
 pub mod derive;
 pub mod options;
 pub mod physics;
@@ -51,19 +52,78 @@ fn guessed_items(ws: &Workspace) -> Vec<(guardband_model::FileId, std::ops::Rang
 }
 
 /// Runs every enabled rule over the derivations (one per regulator, in the
-/// order of [`Model::regulators`]) and applies waivers. `diagnostics` holds
-/// what the model found already; the lint findings and waiver problems are
-/// appended. Each finding carries its rule's name and severity as the
-/// registry declares them (or as `options` override).
+/// order of [`Model::regulators`]; `corners` holds one per regulator and
+/// named corner, in the order of [`Model::variants`]) and applies waivers.
+/// A regulator with corners is checked at each of its corners instead of
+/// once over its whole box, and what fails at a corner names it
+/// ([`corner_findings`]). `diagnostics` holds what the model found
+/// already; the lint findings and waiver problems are appended. Each
+/// finding carries its rule's name and severity as the registry declares
+/// them (or as `options` override).
 pub fn lint(
     ws: &Workspace,
     model: &Model,
     options: &Options,
     derived: &[Derived],
+    corners: &[Derived],
     rails: &[derive::rail::Rail],
     mut diagnostics: Vec<Diagnostic>,
 ) -> Vec<Diagnostic> {
     let mut findings = Vec::new();
+    if model.variants.is_empty() {
+        run_rules(ws, model, options, derived, rails, &[], &mut findings);
+    } else {
+        let with_corners: std::collections::HashSet<_> =
+            model.variants.iter().map(|v| v.regulator).collect();
+        let plain: Vec<Derived> = derived
+            .iter()
+            .filter(|d| !with_corners.contains(&d.regulator))
+            .cloned()
+            .collect();
+        let variants = &model.variants;
+        run_rules(ws, model, options, &plain, rails, variants, &mut findings);
+        let mut at_corners = Vec::with_capacity(corners.len());
+        for d in corners {
+            let mut found = Vec::new();
+            run_rules(
+                ws,
+                model,
+                options,
+                std::slice::from_ref(d),
+                &[],
+                &[],
+                &mut found,
+            );
+            at_corners.push((d.regulator, found));
+        }
+        findings.extend(corner_findings::merge(model, at_corners));
+    }
+    // Where recovery from a syntax error had to guess at the tree, lint
+    // findings would be claims about text the user did not write.
+    let guessed = guessed_items(ws);
+    findings.retain(|d| {
+        !guessed
+            .iter()
+            .any(|(f, s)| *f == d.file && s.start <= d.span.start && d.span.start <= s.end)
+    });
+    let mut waivers = suppress::collect(ws, &mut diagnostics);
+    diagnostics.extend(suppress::apply(&mut waivers, findings));
+    diagnostics.extend(suppress::unused(&waivers));
+    diagnostics
+}
+
+/// One run of every enabled rule over `derived` (and `rails` and
+/// `variants`, for the rules about the whole model), stamping each finding
+/// with its rule and severity.
+fn run_rules(
+    ws: &Workspace,
+    model: &Model,
+    options: &Options,
+    derived: &[Derived],
+    rails: &[derive::rail::Rail],
+    variants: &[guardband_model::Variant],
+    findings: &mut Vec<Diagnostic>,
+) {
     for rule in registry() {
         let severity = match options.severities.get(rule.name) {
             Some(Some(s)) => *s,
@@ -79,6 +139,7 @@ pub fn lint(
             options,
             derived,
             rails,
+            variants,
             rule,
         };
         let mut found = Vec::new();
@@ -89,16 +150,4 @@ pub fn lint(
             findings.push(d);
         }
     }
-    // Where recovery from a syntax error had to guess at the tree, lint
-    // findings would be claims about text the user did not write.
-    let guessed = guessed_items(ws);
-    findings.retain(|d| {
-        !guessed
-            .iter()
-            .any(|(f, s)| *f == d.file && s.start <= d.span.start && d.span.start <= s.end)
-    });
-    let mut waivers = suppress::collect(ws, &mut diagnostics);
-    diagnostics.extend(suppress::apply(&mut waivers, findings));
-    diagnostics.extend(suppress::unused(&waivers));
-    diagnostics
 }

@@ -153,8 +153,7 @@ fn block_of<'a>(analysis: &'a Analysis, d: &Diagnostic, kind: BlockKind) -> Opti
     analysis
         .checked
         .model
-        .nodes
-        .iter()
+        .written()
         .filter(|n| n.kind == kind && n.file == d.file)
         .find(|n| n.span.start <= d.span.start && d.span.end <= n.span.end)
 }
@@ -404,8 +403,7 @@ fn skeleton(analysis: &Analysis, d: &Diagnostic, index: usize) -> Option<Fix> {
     let model = &analysis.checked.model;
     let text = &analysis.checked.ws.file(d.file).text;
     let regulator = model
-        .nodes
-        .iter()
+        .written()
         .filter(|n| n.file == d.file && n.kind == BlockKind::Regulator)
         .find(|n| n.span.start <= d.span.start && d.span.end <= n.span.end)?;
     let close = regulator.span.end.checked_sub(1)?;

@@ -26,6 +26,11 @@ pub fn complete(analysis: &Analysis, file: FileId, offset: usize) -> Vec<Complet
     let before = &text[line_start..offset];
     let enclosing = locate::innermost(analysis, file, offset);
     let model = &analysis.checked.model;
+    // Inside a corner's `pass { }` or `limit NAME { }`: that block's fields.
+    let enclosing = match enclosing {
+        Some(c) if c.kind == BlockKind::Corner => corner_block(analysis, c, offset).or(enclosing),
+        other => other,
+    };
     let kind = enclosing.map(|n| n.kind);
 
     // The field this line sets, if the cursor is after its operator.
@@ -46,6 +51,35 @@ pub fn complete(analysis: &Analysis, file: FileId, offset: usize) -> Vec<Complet
         Some(node) => section(node),
         None => top_level(),
     }
+}
+
+/// The block of a corner's copy of its regulator that the corner's block
+/// around `offset` restates: the corner's blocks are built only there.
+fn corner_block<'a>(analysis: &'a Analysis, corner: &Node, offset: usize) -> Option<&'a Node> {
+    let model = &analysis.checked.model;
+    let variant = model.variants.iter().find(|v| v.corner == corner.id)?;
+    let parse = &analysis.checked.ws.file(corner.file).parse;
+    let regulator = model.node(variant.regulator);
+    let written = parse.file.items.iter().find_map(|i| match i {
+        guardband_syntax::Item::Block(b) if b.span == regulator.span => Some(b),
+        _ => None,
+    })?;
+    let corner_block = written.members.iter().find_map(|m| match m {
+        guardband_syntax::Member::Block(b) if b.span == corner.span => Some(b),
+        _ => None,
+    })?;
+    let inner = corner_block.members.iter().find_map(|m| match m {
+        guardband_syntax::Member::Block(b) if b.span.start <= offset && offset <= b.span.end => {
+            Some(b)
+        }
+        _ => None,
+    })?;
+    model
+        .node(variant.root)
+        .children
+        .iter()
+        .map(|c| model.node(*c))
+        .find(|n| n.keyword == inner.keyword.text.as_str() && n.key() == inner.key().text.as_str())
 }
 
 /// Whether a field belongs with the block's chosen variant: a field whose

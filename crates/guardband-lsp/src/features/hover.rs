@@ -5,7 +5,9 @@
 
 use super::locate::{self, Hit};
 use crate::engine::Analysis;
-use guardband_model::{BlockKind, FieldValue, FileId, Model, Node, Symbol, Value, Workspace};
+use guardband_model::{
+    BlockKind, FieldValue, FileId, Model, Node, NodeId, Symbol, Value, Workspace,
+};
 use guardband_rules::derive::view::{self, Role, Row};
 use guardband_rules::derive::{stat_settings, statistical};
 use guardband_rules::show::{in_unit, number, percent};
@@ -78,9 +80,13 @@ pub fn describe(analysis: &Analysis, symbol: Symbol, out: &mut String) {
         Symbol::Field(n, i) => {
             let node = model.node(n);
             let field = &node.fields[i];
+            let at = model
+                .corner_of(n)
+                .map(|c| format!(" at corner `{}`", c.key()))
+                .unwrap_or_default();
             let _ = writeln!(
                 out,
-                "**`{}.{}`**: {}\n",
+                "**`{}.{}`**{at}: {}\n",
                 node.path, field.key, field.spec.doc
             );
             match &field.value {
@@ -266,7 +272,13 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
         return write_rows(&rows.iter().collect::<Vec<_>>(), out);
     }
     let regulator = model.item_of(node.id);
-    let Some(derived) = analysis.checked.derived_for(regulator.id) else {
+    // A node of a corner's copy shows the figures at that corner.
+    let derived = if model.corner_of(node.id).is_some() {
+        guardband_rules::derive::derived_of(&analysis.checked.corners, regulator.id)
+    } else {
+        analysis.checked.derived_for(regulator.id)
+    };
+    let Some(derived) = derived else {
         return;
     };
     let rows = view::rows(model, derived, &analysis.checked.config.options);
@@ -274,17 +286,17 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     if node.kind == BlockKind::Fault {
         fault_expectations(model, derived, node, out);
     }
-    let wanted = |r: &Row| match node.kind {
-        BlockKind::Regulator => r.node == node.id || r.role == Role::NotDerived,
+    let wanted = |r_node: NodeId, role: Role| match node.kind {
+        BlockKind::Regulator => r_node == node.id || role == Role::NotDerived,
         BlockKind::Limit | BlockKind::Conductor | BlockKind::Pass | BlockKind::CycleBudget => {
-            r.node == node.id
+            r_node == node.id
         }
-        BlockKind::Startup => matches!(r.role, Role::StartupSurge | Role::StartupTime),
+        BlockKind::Startup => matches!(role, Role::StartupSurge | Role::StartupTime),
         BlockKind::Pin if key.is_none() || key == Some("capacitance") => {
-            matches!(r.role, Role::StartupSurge | Role::StartupTime)
+            matches!(role, Role::StartupSurge | Role::StartupTime)
         }
         BlockKind::ThermalShutdown | BlockKind::Hiccup | BlockKind::Foldback => matches!(
-            r.role,
+            role,
             Role::ShortHeat
                 | Role::OverloadHeat
                 | Role::RatedLoadHeat
@@ -294,21 +306,47 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
                 | Role::ShortCurrent
         ),
         BlockKind::Fault => match event {
-            Some("short_to_ground") => matches!(r.role, Role::ShortCurrent | Role::ShortHeat),
+            Some("short_to_ground") => matches!(role, Role::ShortCurrent | Role::ShortHeat),
             Some("overload") => matches!(
-                r.role,
+                role,
                 Role::WorstCurrent | Role::OverloadHeat | Role::Recovery
             ),
-            Some("startup") => matches!(r.role, Role::StartupSurge | Role::StartupTime),
+            Some("startup") => matches!(role, Role::StartupSurge | Role::StartupTime),
             Some("short_to_supply" | "reverse_current") => {
-                r.role == Role::ReverseCase && r.node == node.id
+                role == Role::ReverseCase && r_node == node.id
             }
             _ => false,
         },
         _ => false,
     };
-    let chosen: Vec<&Row> = rows.iter().filter(|r| wanted(r)).collect();
+    let chosen: Vec<&Row> = rows.iter().filter(|r| wanted(r.node, r.role)).collect();
     write_rows(&chosen, out);
+    let corners = analysis.checked.corners_of(regulator.id);
+    if !corners.is_empty() {
+        let at = view::corner_rows(model, &analysis.checked.config.options, &corners);
+        let chosen: Vec<&view::CornerRow> = at.iter().filter(|r| wanted(r.node, r.role)).collect();
+        write_corner_rows(&chosen, out);
+    }
+}
+
+/// The figures at each named corner as a hover's list: one line per
+/// figure, each corner's value, and the worst corner.
+fn write_corner_rows(chosen: &[&view::CornerRow], out: &mut String) {
+    if chosen.is_empty() {
+        return;
+    }
+    let _ = writeln!(out, "**At each corner**\n");
+    for r in chosen {
+        let each: Vec<String> =
+            r.at.iter()
+                .map(|(corner, value)| format!("`{corner}` {value}"))
+                .collect();
+        let _ = writeln!(out, "- {}: {}", r.label, each.join("; "));
+        if let Some(w) = &r.worst {
+            let _ = writeln!(out, "  - {w}");
+        }
+    }
+    out.push('\n');
 }
 
 /// Each expectation of a fault case beside the derived bound it is held

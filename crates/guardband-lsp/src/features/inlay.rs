@@ -51,8 +51,7 @@ pub fn hints(
     // The derived rows of each regulator with a block in range, worded once.
     let mut derived_rows = std::collections::HashMap::new();
     for node in model
-        .nodes
-        .iter()
+        .written()
         .filter(|n| n.file == file && n.span.end >= lo && n.span.start <= hi)
     {
         let wanted = match node.kind {

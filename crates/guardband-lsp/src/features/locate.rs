@@ -40,8 +40,7 @@ pub fn innermost(analysis: &Analysis, file: FileId, offset: usize) -> Option<&No
     analysis
         .checked
         .model
-        .nodes
-        .iter()
+        .written()
         .filter(|n| n.file == file && contains(&n.span, offset))
         .min_by_key(|n| n.span.len())
 }
@@ -58,6 +57,11 @@ pub fn at(analysis: &Analysis, file: FileId, offset: usize) -> Option<Hit<'_>> {
         return Some(Hit::Reference(r));
     }
     let node = innermost(analysis, file, offset)?;
+    if node.kind == guardband_model::BlockKind::Corner
+        && let Some(hit) = in_corner_copy(analysis, node, offset)
+    {
+        return Some(hit);
+    }
     for (i, f) in node.fields.iter().enumerate() {
         if contains(&f.key_span, offset) {
             return Some(Hit::FieldKey(node.id, i));
@@ -70,4 +74,32 @@ pub fn at(analysis: &Analysis, file: FileId, offset: usize) -> Option<Hit<'_>> {
         return Some(Hit::NodeName(node.id));
     }
     Some(Hit::Inside(node.id))
+}
+
+/// A field written in one of a corner's blocks (`corner c { pass { ... } }`)
+/// lives only in the corner's copy of the regulator: the hit is the copy's
+/// field, so a hover shows the value at that corner.
+fn in_corner_copy<'a>(analysis: &'a Analysis, corner: &Node, offset: usize) -> Option<Hit<'a>> {
+    let model = &analysis.checked.model;
+    let variant = model.variants.iter().find(|v| v.corner == corner.id)?;
+    let mut stack = vec![variant.root];
+    while let Some(id) = stack.pop() {
+        let node = model.node(id);
+        stack.extend(node.children.iter().copied());
+        if node.id == variant.root {
+            continue; // the corner's own fields are the corner node's
+        }
+        for (i, f) in node.fields.iter().enumerate() {
+            if !model.set_by_corner(node, &f.key) {
+                continue;
+            }
+            if contains(&f.key_span, offset) {
+                return Some(Hit::FieldKey(node.id, i));
+            }
+            if contains(&f.span, offset) {
+                return Some(Hit::FieldValue(node.id, i));
+            }
+        }
+    }
+    None
 }

@@ -15,6 +15,7 @@ fn kind_of(kind: BlockKind) -> SymbolKind {
         BlockKind::Analysis => SymbolKind::FUNCTION,
         BlockKind::Pin => SymbolKind::INTERFACE,
         BlockKind::Conductor | BlockKind::Metal => SymbolKind::STRUCT,
+        BlockKind::Corner => SymbolKind::ENUM_MEMBER,
         _ => SymbolKind::OBJECT,
     }
 }
@@ -56,8 +57,7 @@ pub fn workspace(analysis: &Analysis, query: &str, encoding: Encoding) -> Vec<Wo
     let model = &analysis.checked.model;
     let query = query.to_lowercase();
     model
-        .nodes
-        .iter()
+        .written()
         .filter(|n| n.path.to_lowercase().contains(&query))
         .filter_map(|n| {
             let index = analysis.checked.ws.file(n.file).line_index();

@@ -82,13 +82,7 @@ pub fn tokens(
             block_spans(b, &mut kinds);
         }
     }
-    for node in analysis
-        .checked
-        .model
-        .nodes
-        .iter()
-        .filter(|n| n.file == file)
-    {
+    for node in analysis.checked.model.written().filter(|n| n.file == file) {
         for f in &node.fields {
             if matches!(f.spec.ty, FieldType::Choice(_)) {
                 kinds.insert(f.expr.span.start, Kind::Choice);

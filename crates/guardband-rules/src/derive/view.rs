@@ -729,3 +729,118 @@ pub fn rail_rows(model: &Model, rail: &super::rail::Rail) -> Vec<Row> {
     }
     vec![r]
 }
+
+/// One figure of a regulator with named corners, at each corner: what
+/// hovers and the report show beside the box's bound.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CornerRow {
+    /// The block as written that the figure belongs to.
+    pub node: NodeId,
+    pub role: Role,
+    pub label: String,
+    /// Each corner's name and the figure there, in the order written.
+    pub at: Vec<(String, String)>,
+    /// Which corner is worst for this figure, in words, when the figure
+    /// has a direction (a current or a junction: the highest; a limit
+    /// window: its lowest low edge and its highest high edge).
+    pub worst: Option<String>,
+}
+
+/// The figures of a regulator at each of its corners (`(corner, derived)`
+/// in the order written), grouped by figure.
+pub fn corner_rows(
+    model: &Model,
+    options: &Options,
+    corners: &[(&guardband_model::Node, &Derived)],
+) -> Vec<CornerRow> {
+    let mut out: Vec<CornerRow> = Vec::new();
+    // Per figure, each corner's number to rank by: (low, high).
+    let mut ranks: Vec<Vec<Ranked>> = Vec::new();
+    for (corner, d) in corners {
+        let name = corner.key().to_string();
+        for r in rows(model, d, options) {
+            let node = model.written_of(r.node);
+            let rank = rank(d, &r);
+            let at = match out
+                .iter()
+                .position(|o| o.node == node && o.role == r.role && o.label == r.label)
+            {
+                Some(i) => i,
+                None => {
+                    out.push(CornerRow {
+                        node,
+                        role: r.role,
+                        label: r.label.clone(),
+                        at: Vec::new(),
+                        worst: None,
+                    });
+                    ranks.push(Vec::new());
+                    out.len() - 1
+                }
+            };
+            out[at].at.push((name.clone(), r.value));
+            ranks[at].push((name.clone(), rank));
+        }
+    }
+    for (row, ranked) in out.iter_mut().zip(ranks) {
+        row.worst = worst(row.role, &ranked);
+    }
+    out
+}
+
+/// A corner's name and the `(low, high)` its figure is ranked by.
+type Ranked = (String, Option<(f64, f64)>);
+
+/// The number a row is ranked by at one corner, `(low, high)`.
+fn rank(d: &Derived, r: &Row) -> Option<(f64, f64)> {
+    let junction =
+        |h: &super::Figure<super::Heat>| h.as_ref().ok().map(|h| (h.junction, h.junction));
+    match r.role {
+        Role::ShortHeat => junction(&d.short),
+        Role::OverloadHeat => junction(&d.overload),
+        Role::RatedLoadHeat => junction(&d.normal),
+        Role::LimitWorstCase
+        | Role::Trip
+        | Role::WorstCurrent
+        | Role::ShortCurrent
+        | Role::StartupSurge
+        | Role::FullGate => r.current,
+        _ => None,
+    }
+}
+
+/// The worst corner of one figure, in words.
+fn worst(role: Role, ranked: &[Ranked]) -> Option<String> {
+    if ranked.len() < 2 || ranked.iter().any(|(_, r)| r.is_none()) {
+        return None;
+    }
+    // Every corner at the extreme (ties named together), e.g. "`a`, `b`".
+    let pick = |lowest: bool, of: fn((f64, f64)) -> f64| {
+        let values: Vec<f64> = ranked
+            .iter()
+            .map(|(_, r)| of(r.expect("checked above")))
+            .collect();
+        let best = if lowest {
+            values.iter().copied().fold(f64::INFINITY, f64::min)
+        } else {
+            values.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+        };
+        let names: Vec<String> = ranked
+            .iter()
+            .zip(&values)
+            .filter(|(_, x)| {
+                !crate::compare::exceeds(**x, best) && !crate::compare::below(**x, best)
+            })
+            .map(|((n, _), _)| format!("`{n}`"))
+            .collect();
+        (!names.is_empty()).then(|| names.join(", "))
+    };
+    let highest = pick(false, |r| r.1)?;
+    Some(match role {
+        Role::LimitWorstCase | Role::Trip | Role::FullGate => {
+            let lowest = pick(true, |r| r.0)?;
+            format!("lowest at {lowest}, highest at {highest}")
+        }
+        _ => format!("worst at {highest}"),
+    })
+}

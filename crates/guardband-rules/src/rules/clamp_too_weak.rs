@@ -25,7 +25,7 @@ use crate::context::Context;
 use guardband_model::{BlockKind, Diagnostic};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         let Some(pass) = ctx.model.child(reg, BlockKind::Pass) else {
             continue;
         };

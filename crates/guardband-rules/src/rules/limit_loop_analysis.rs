@@ -41,7 +41,7 @@ use guardband_syntax::Relation;
 use guardband_units::{Dimension, QuantityKind};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         let output = reg.quantity("output");
         for limit in ctx.model.children(reg, BlockKind::Limit) {
             if limit.choice("scheme") != Some("replica") {

@@ -32,7 +32,7 @@ use crate::context::Context;
 use guardband_model::{BlockKind, Diagnostic};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         for a in ctx.model.children(reg, BlockKind::Analysis) {
             let sensed = a
                 .reference("loop")

@@ -34,7 +34,7 @@ fn event(f: &Node) -> Option<&str> {
 }
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         let faults: Vec<&Node> = ctx.model.children(reg, BlockKind::Fault).collect();
         for pin in ctx.model.children(reg, BlockKind::Pin) {
             if pin.flag("off_chip") != Some(true) {

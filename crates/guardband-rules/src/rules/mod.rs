@@ -48,6 +48,8 @@ crate::registry::declare_rules! {
         "sustained shorts that cycle the junction more than the cycle budget allows";
     rail_droop: "rail-droop", Some(Severity::Error),
         "regulators starting together that droop a shared supply to its lockout, below a regulator's minimum supply, or past its current limit";
+    corner_envelope: "corner-envelope", Some(Severity::Error),
+        "a named corner outside the regulator's range, or an end of a range that no corner reaches";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }

@@ -50,7 +50,7 @@ const WATCHED: &[(BlockKind, &[&str])] = &[
 ];
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         let mut nodes = vec![reg];
         nodes.extend(reg.children.iter().map(|c| ctx.node(*c)));
         for node in nodes {
@@ -76,7 +76,10 @@ pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
                 let Some(v) = node.quantity(key) else {
                     continue;
                 };
-                if v.is_exact() {
+                // A corner's ambient, supply or load is one point on purpose.
+                let corner_condition =
+                    node.kind == BlockKind::Regulator && ctx.model.set_by_corner(node, key);
+                if v.is_exact() && !corner_condition {
                     out.push(
                         ctx.at(node,
                             key,

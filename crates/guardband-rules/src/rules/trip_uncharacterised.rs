@@ -29,7 +29,7 @@ use crate::context::Context;
 use guardband_model::{BlockKind, Diagnostic};
 
 pub fn check(ctx: &Context, out: &mut Vec<Diagnostic>) {
-    for reg in ctx.model.regulators() {
+    for reg in ctx.regulators() {
         for limit in ctx.model.children(reg, BlockKind::Limit) {
             if limit.choice("scheme") == Some("undervoltage_fixed")
                 && limit.field("trip_current").is_none()
