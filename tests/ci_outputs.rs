@@ -183,7 +183,7 @@ fn sarif_of_the_examples_validates_against_the_official_schema() {
         results.len(),
         json["diagnostics"].as_array().expect("d").len()
     );
-    assert_eq!(results.len(), 29, "20 errors, 6 warnings, 3 infos");
+    assert_eq!(results.len(), 30, "21 errors, 6 warnings, 3 infos");
     for (r, d) in results
         .iter()
         .zip(json["diagnostics"].as_array().expect("d"))
@@ -270,11 +270,11 @@ fn github_annotations_carry_positions_and_escape_text() {
     let run = guardband(&root().join("examples"), &["check", "--format", "github"]);
     assert_eq!(run.code, 1);
     let lines: Vec<&str> = run.stdout.lines().collect();
-    // 29 findings, and a closing line: more than 10 errors were printed.
-    assert_eq!(lines.len(), 30, "{}", run.stdout);
+    // 30 findings, and a closing line: more than 10 errors were printed.
+    assert_eq!(lines.len(), 31, "{}", run.stdout);
     let (last, lines) = lines.split_last().expect("lines");
     assert!(
-        last.starts_with("guardband: printed 20 error annotations"),
+        last.starts_with("guardband: printed 21 error annotations"),
         "{last}"
     );
     assert!(lines.iter().all(|l| l.starts_with("::error ")
@@ -351,7 +351,7 @@ fn output_file_and_exit_zero() {
     assert_eq!(run.code, 1, "findings still fail without --exit-zero");
     let text = std::fs::read_to_string(&human).expect("written");
     assert!(
-        text.ends_with("20 errors, 6 warnings, 3 infos in 10 files\n"),
+        text.ends_with("21 errors, 6 warnings, 3 infos in 10 files\n"),
         "{text}"
     );
     assert!(!text.contains('\u{1b}'), "no colour codes in a file");

@@ -16,7 +16,7 @@ fn examples_show_each_rule_where_documented() {
     assert!(
         run.stdout
             .trim_end()
-            .ends_with("20 errors, 6 warnings, 3 infos in 10 files"),
+            .ends_with("21 errors, 6 warnings, 3 infos in 10 files"),
         "{}",
         run.stdout
     );
@@ -50,6 +50,7 @@ fn examples_show_each_rule_where_documented() {
         ("rated-load-overheat", "flawed/heater_rail.guard"),
         ("reverse-current-overstress", "flawed/heater_rail.guard"),
         ("expectation-unchecked", "flawed/heater_rail.guard"),
+        ("corner-envelope", "flawed/heater_rail.guard"),
         ("rail-droop", "flawed/ir_pack.guard"),
         ("cycle-budget-exceeded", "flawed/lamp_rail.guard"),
     ];

@@ -181,3 +181,29 @@ fn a_supply_that_moved_is_listed_with_its_droop() {
     assert_eq!(v["supplies"][0]["name"], "tern_cell");
     assert_eq!(v["regulators"].as_array().map(Vec::len), Some(0));
 }
+
+// A figure that moves at one named corner only is listed under that
+// corner: the box (the regulator's own 0.35 A .. 1.2 A) does not move.
+#[test]
+fn a_figure_that_moved_at_one_corner_is_named_by_it() {
+    let dir = temp_dir("diff-corner");
+    let (before, after) = (dir.join("before"), dir.join("after"));
+    copy_tree(&root().join("examples"), &before);
+    copy_tree(&root().join("examples"), &after);
+    edit(
+        &after.join("sensor_rail.guard"),
+        "full_gate_current = 0.7 A .. 1.2 A",
+        "full_gate_current = 0.75 A .. 1.2 A",
+    );
+    let run = guardband(&dir, &["diff", "before", "after"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let md = &run.stdout;
+    let moved: Vec<&str> = md.lines().filter(|l| l.contains("full-gate")).collect();
+    assert_eq!(moved.len(), 1, "{md}");
+    assert!(
+        moved[0].contains("at corner `strong`")
+            && moved[0].contains("0.7 A .. 1.2 A")
+            && moved[0].contains("0.75 A .. 1.2 A"),
+        "{md}"
+    );
+}

@@ -41,7 +41,7 @@ fn the_examples_report_has_a_summary_and_a_parsable_chart_per_regulator() {
         "{summary}"
     );
     assert!(
-        summary.contains("20 errors, 6 warnings, 3 infos"),
+        summary.contains("21 errors, 6 warnings, 3 infos"),
         "{summary}"
     );
     for regulator in [

@@ -62,6 +62,27 @@ fn collapse(text: &str) -> String {
     text.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
+/// A regulator's figures over its box and, with named corners, at each
+/// corner (`label at corner `c``), so a change that moves one corner shows.
+fn regulator_figures(
+    checked: &Checked,
+    reg: &guardband_model::Node,
+    derived: &guardband_rules::Derived,
+) -> Vec<(String, String)> {
+    let options = &checked.config.options;
+    let mut figures: Vec<(String, String)> = view::rows(&checked.model, derived, options)
+        .into_iter()
+        .map(|r| (r.label, r.value))
+        .collect();
+    let corners = checked.corners_of(reg.id);
+    for r in view::corner_rows(&checked.model, options, &corners) {
+        for (corner, value) in r.at {
+            figures.push((format!("{} at corner `{corner}`", r.label), value));
+        }
+    }
+    figures
+}
+
 /// The snapshot of one check.
 pub fn snapshot(checked: &Checked) -> Snapshot {
     let (ws, model) = (&checked.ws, &checked.model);
@@ -71,10 +92,7 @@ pub fn snapshot(checked: &Checked) -> Snapshot {
         .map(|(reg, derived)| RegulatorFigures {
             name: reg.key().to_string(),
             file: ws.file(reg.file).display.clone(),
-            figures: view::rows(model, derived, &checked.config.options)
-                .into_iter()
-                .map(|r| (r.label, r.value))
-                .collect(),
+            figures: regulator_figures(checked, reg, derived),
         })
         .collect();
     let supplies = checked
