@@ -1345,3 +1345,33 @@ fn a_shared_supply_hover_counts_drawers_in_files_not_open() {
     assert!(value.contains("399 mA × 250 mΩ"), "{value}");
     assert!(value.contains("0.104 V below its lowest 2.7 V"), "{value}");
 }
+
+/// Renaming a block that a corner restates renames the restatement too,
+/// so the corner does not end up restating a block that is gone; the
+/// references list it.
+#[test]
+fn renaming_a_block_renames_its_restatement_in_a_corner() {
+    let dir = temp_dir("lsp-corner-rename");
+    let path = dir.join("r.guard");
+    let text = "regulator r {\n    supply = 3 V .. 3.6 V\n    limit sensed { scheme = replica  ratio = 1000  reference = 100 uA ± 5 %  threshold = ratio * reference }\n    corner hot { ambient = 85 °C  limit sensed { reference = 100 uA ± 3 % } }\n}\n";
+    std::fs::write(&path, text).expect("write");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, text, 1);
+    client.diagnostics(&u, 1);
+    let refs = client.request(
+        "textDocument/references",
+        json!({ "textDocument": doc(&u), "position": pos16(text, "limit sensed", 0, 7), "context": { "includeDeclaration": true } }),
+    );
+    let refs = refs.as_array().expect("refs");
+    assert_eq!(refs.len(), 2, "{refs:?}");
+    let edit = client.request(
+        "textDocument/rename",
+        json!({ "textDocument": doc(&u), "position": pos16(text, "limit sensed", 0, 7), "newName": "main_limit" }),
+    );
+    let edits = edit["changes"][u.as_str()].as_array().expect("edits");
+    let renamed = apply(text, edits);
+    assert_eq!(renamed.matches("limit main_limit").count(), 2, "{renamed}");
+    assert!(!renamed.contains("sensed"), "{renamed}");
+    assert_eq!(client.stop(), Some(0));
+}

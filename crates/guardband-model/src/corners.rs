@@ -47,7 +47,25 @@ pub(crate) fn add_variants(
             regulator: block.key().text.as_str(),
             corner: written.key().text.as_str(),
         };
-        let merged = merge(block, written, true, file, &names, diagnostics);
+        let mut restated = Vec::new();
+        let merged = merge(
+            block,
+            written,
+            true,
+            file,
+            &names,
+            &mut restated,
+            diagnostics,
+        );
+        model
+            .restated
+            .extend(restated.into_iter().map(|(corner_name, written_name)| {
+                crate::model::Restated {
+                    file,
+                    corner_name,
+                    written_name,
+                }
+            }));
         let root = add_block(model, file, spec, &merged, None, diagnostics);
         link(model, root, regulator, corner);
         model.variants.push(Variant {
@@ -76,6 +94,7 @@ fn merge(
     top: bool,
     file: FileId,
     names: &Names,
+    restated: &mut Vec<(guardband_syntax::Span, guardband_syntax::Span)>,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Block {
     let mut used = vec![false; over.members.len()];
@@ -107,7 +126,18 @@ fn merge(
                         let Member::Block(c) = &over.members[i] else {
                             unreachable!("found as a block")
                         };
-                        members.push(Member::Block(merge(b, c, false, file, names, diagnostics)));
+                        if let (Some(cn), Some(wn)) = (&c.name, &b.name) {
+                            restated.push((cn.span.clone(), wn.span.clone()));
+                        }
+                        members.push(Member::Block(merge(
+                            b,
+                            c,
+                            false,
+                            file,
+                            names,
+                            restated,
+                            diagnostics,
+                        )));
                     }
                     None => members.push(member.clone()),
                 }
@@ -121,6 +151,16 @@ fn merge(
         }
         match member {
             Member::Field(f) if top && CORNER_ONLY.contains(&f.keyword.text.as_str()) => {}
+            // A field the corner may not hold was reported when the corner
+            // itself was built; the copy would report it again.
+            Member::Field(f)
+                if top
+                    && schema::field_spec(
+                        BlockKind::Corner,
+                        &f.keyword.text,
+                        f.name.as_ref().map(|n| n.text.as_str()),
+                    )
+                    .is_none() => {}
             Member::Field(_) => members.push(member.clone()),
             Member::Block(b) => {
                 // A block the corner may not hold was reported when the

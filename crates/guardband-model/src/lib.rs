@@ -20,7 +20,9 @@ mod workspace;
 pub use diagnostic::{Diagnostic, FileId, LANGUAGE_DIAGNOSTICS, Label, Remedy, Severity};
 pub use eval::visible_items;
 pub use limits::Limits;
-pub use model::{CornerOf, Field, FieldValue, Model, Node, NodeId, Reference, Symbol, Variant};
+pub use model::{
+    CornerOf, Field, FieldValue, Model, Node, NodeId, Reference, Restated, Symbol, Variant,
+};
 pub use read::{is_link_loop, read_source};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};

@@ -93,6 +93,16 @@ pub struct CornerOf {
     pub corner: NodeId,
 }
 
+/// A corner's restatement of one of its regulator's named blocks.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Restated {
+    pub file: crate::FileId,
+    /// The name as the corner writes it.
+    pub corner_name: Span,
+    /// The name of the block as the regulator writes it.
+    pub written_name: Span,
+}
+
 /// A regulator at one of its named corners: a copy of its tree with the
 /// corner's fields and blocks in place of its own, derived and checked
 /// like a regulator of its own.
@@ -188,6 +198,9 @@ pub struct Model {
     pub sources: Vec<ToleranceSource>,
     /// Each regulator at each of its named corners, in the order written.
     pub variants: Vec<Variant>,
+    /// Each named block a corner restates (`corner c { limit sensed { … } }`),
+    /// so renaming the block renames its restatements too.
+    pub restated: Vec<Restated>,
 }
 
 impl Model {

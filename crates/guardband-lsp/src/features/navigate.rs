@@ -91,6 +91,14 @@ fn uses(analysis: &Analysis, symbol: Symbol) -> Vec<(FileId, std::ops::Range<usi
         .collect();
     if let Symbol::Node(n) = symbol {
         let node = model.node(n);
+        // A corner that restates the block names it again.
+        out.extend(
+            model
+                .restated
+                .iter()
+                .filter(|r| r.file == node.file && r.written_name == node.name_span)
+                .map(|r| (r.file, r.corner_name.clone())),
+        );
         if node.kind == guardband_model::BlockKind::Pin {
             let regulator = model.item_of(n);
             let mut stack = vec![regulator.id];
