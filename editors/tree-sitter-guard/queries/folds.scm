@@ -1,0 +1,2 @@
+; Every block folds: a regulator, its sections, its fault cases.
+(body) @fold

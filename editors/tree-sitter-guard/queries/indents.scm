@@ -1,0 +1,3 @@
+; One level per block body; the closing brace goes back out.
+(body) @indent
+"}" @outdent
