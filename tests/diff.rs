@@ -207,3 +207,74 @@ fn a_figure_that_moved_at_one_corner_is_named_by_it() {
         "{md}"
     );
 }
+
+/// Runs git in `dir` for the test's own repository (the product reads
+/// revisions without running git).
+fn git(dir: &Path, args: &[&str]) {
+    let status = std::process::Command::new("git")
+        .args([
+            "-c",
+            "user.name=guardband test",
+            "-c",
+            "user.email=test@invalid",
+        ])
+        .args([
+            "-c",
+            "commit.gpgsign=false",
+            "-c",
+            "init.defaultBranch=main",
+        ])
+        .args(args)
+        .current_dir(dir)
+        .status()
+        .expect("run git");
+    assert!(status.success(), "git {args:?}");
+}
+
+// A git revision against the work tree: the committed examples, then the
+// mirror ratio raised in the work tree only (not committed). The limit
+// window is ratio × reference, so its edges move by 5000 / 4000 = +25 %
+// (arithmetic), and nothing else in `sensor_rail` moves.
+#[test]
+fn a_git_revision_is_compared_with_the_work_tree() {
+    let dir = temp_dir("diff-rev");
+    copy_tree(&root().join("examples"), &dir.join("specs"));
+    git(&dir, &["init", "-q"]);
+    git(&dir, &["add", "."]);
+    git(&dir, &["commit", "-q", "-m", "specs"]);
+    edit(
+        &dir.join("specs/flawed/aux_rail.guard"),
+        "ratio       = 4000",
+        "ratio       = 5000",
+    );
+    let run = guardband(&dir, &["diff", "--rev", "HEAD", "specs"]);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let md = &run.stdout;
+    assert!(
+        md.starts_with("## guardband: derived figures, specs at HEAD → specs\n"),
+        "{md}"
+    );
+    assert!(
+        md.contains("### Regulator `aux_rail` (flawed/aux_rail.guard, changed)"),
+        "{md}"
+    );
+    assert!(md.contains("(+25 %)"), "{md}");
+    assert!(!md.contains("`sensor_rail`"), "{md}");
+    // Nothing moved between the revision and itself.
+    edit(
+        &dir.join("specs/flawed/aux_rail.guard"),
+        "ratio       = 5000",
+        "ratio       = 4000",
+    );
+    let same = guardband(&dir, &["diff", "--rev", "HEAD", "specs"]);
+    assert!(
+        same.stdout
+            .contains("No derived figure, finding or waiver changed."),
+        "{}",
+        same.stdout
+    );
+    // An unknown revision is a usage error that names it.
+    let bad = guardband(&dir, &["diff", "--rev", "no-such-branch", "specs"]);
+    assert_eq!(bad.code, 2);
+    assert!(bad.stderr.contains("no-such-branch"), "{}", bad.stderr);
+}

@@ -6,6 +6,7 @@ mod excerpt;
 mod github;
 mod render;
 mod repo;
+mod revision;
 mod sarif;
 mod write;
 
@@ -110,13 +111,19 @@ enum Command {
         out: PathBuf,
     },
     /// Compare the derived figures, findings and waivers of two revisions
-    /// of a workspace (two folders, e.g. a `git worktree` of the base
-    /// branch and the work tree) and print what moved.
+    /// of a workspace (two folders, or one folder at a git revision and in
+    /// the work tree with `--rev`) and print what moved.
     Diff {
-        /// The earlier revision: a folder or a file.
+        /// The earlier revision: a folder or a file (with `--rev`, the one
+        /// folder or file, compared with itself at that revision).
         before: PathBuf,
         /// The later revision: a folder or a file.
-        after: PathBuf,
+        after: Option<PathBuf>,
+        /// Compare the folder or file as it is at this git revision (a
+        /// branch, tag, commit or `HEAD~1`, read from the repository without
+        /// running git) with the work tree.
+        #[arg(long, value_name = "REV")]
+        rev: Option<String>,
         /// Output format.
         #[arg(long, value_enum, default_value = "markdown")]
         format: DiffFormat,
@@ -180,9 +187,23 @@ fn run() -> ExitCode {
         Command::Diff {
             before,
             after,
+            rev,
             format,
             output,
-        } => diff(&before, &after, format, output),
+        } => match (after, rev) {
+            (Some(after), None) => diff(Side::Folder(&before), &after, format, output),
+            (None, Some(rev)) => diff(Side::Revision(&before, &rev), &before, format, output),
+            (Some(_), Some(_)) => {
+                eprintln!(
+                    "guardband: with --rev give one folder or file: it is compared with itself at that revision"
+                );
+                ExitCode::from(2)
+            }
+            (None, None) => {
+                eprintln!("guardband: give two folders or files to compare, or one with --rev REV");
+                ExitCode::from(2)
+            }
+        },
         Command::Lsp => match guardband_lsp::run_stdio() {
             Ok(()) => ExitCode::SUCCESS,
             Err(code) => ExitCode::from(code),
@@ -371,26 +392,71 @@ fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
     }
 }
 
+/// The earlier side of a diff: a folder (or file) on disk, or one as it is
+/// at a git revision.
+enum Side<'a> {
+    Folder(&'a std::path::Path),
+    Revision(&'a std::path::Path, &'a str),
+}
+
+/// The check of `path` as it is at `rev`, with the work tree's root.
+fn load_at_revision(
+    path: &std::path::Path,
+    rev: &str,
+) -> Result<guardband_check::Checked, ExitCode> {
+    let (root, _) = find_files(vec![path.to_path_buf()])?;
+    let at = revision::AtRevision::read(path, rev).map_err(|msg| {
+        eprintln!("guardband: {msg}");
+        ExitCode::from(2)
+    })?;
+    let full = path.canonicalize().unwrap_or_else(|_| path.to_path_buf());
+    let entries = at.entries(&full);
+    if entries.is_empty() {
+        eprintln!(
+            "guardband: no .guard files under {} at `{rev}`",
+            path.display()
+        );
+        return Err(ExitCode::from(2));
+    }
+    let read = |p: &std::path::Path, limit: usize| at.read_file(p, limit);
+    guardband_check::check_workspace(&root, &entries, &read).map_err(|(p, e)| {
+        eprintln!("guardband: cannot read {} at `{rev}`: {e}", p.display());
+        ExitCode::from(2)
+    })
+}
+
 fn diff(
-    before: &std::path::Path,
+    before: Side,
     after: &std::path::Path,
     format: DiffFormat,
     output: Option<PathBuf>,
 ) -> ExitCode {
     use guardband_report::diff;
+    let b = match before {
+        Side::Folder(p) => p.display().to_string(),
+        Side::Revision(p, rev) => format!("{} at {rev}", p.display()),
+    };
     let mut snapshots = Vec::new();
-    for side in [before, after] {
-        if !side.exists() {
-            eprintln!("guardband: {} does not exist", side.display());
-            return ExitCode::from(2);
-        }
-        match load_checked(vec![side.to_path_buf()]) {
+    let on_disk: &[&std::path::Path] = match before {
+        Side::Folder(p) => &[p, after],
+        Side::Revision(..) => &[after],
+    };
+    if let Some(missing) = on_disk.iter().find(|p| !p.exists()) {
+        eprintln!("guardband: {} does not exist", missing.display());
+        return ExitCode::from(2);
+    }
+    let earlier = match before {
+        Side::Folder(p) => load_checked(vec![p.to_path_buf()]),
+        Side::Revision(p, rev) => load_at_revision(p, rev),
+    };
+    for checked in [earlier, load_checked(vec![after.to_path_buf()])] {
+        match checked {
             Ok(c) => snapshots.push(diff::snapshot(&c)),
             Err(code) => return code,
         }
     }
     let d = diff::diff(&snapshots[0], &snapshots[1]);
-    let (b, a) = (before.display().to_string(), after.display().to_string());
+    let a = after.display().to_string();
     let text = match format {
         DiffFormat::Markdown => diff::markdown(&d, &b, &a),
         DiffFormat::Json => {
