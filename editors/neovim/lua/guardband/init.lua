@@ -10,7 +10,23 @@ M.config = {
   cmd = { 'guardband', 'lsp' },
   debounce_ms = 150,
   inlay_hints = true,
+  -- The folder of this repository's tree-sitter grammar
+  -- (editors/tree-sitter-guard): with nvim-treesitter installed it is
+  -- registered as `guard` (then `:TSInstall guard`), and buffers use it.
+  tree_sitter = nil,
 }
+
+-- Registers the grammar with nvim-treesitter, when both are there.
+local function register_grammar(path)
+  local ok, parsers = pcall(require, 'nvim-treesitter.parsers')
+  if not ok or not path then
+    return
+  end
+  parsers.get_parser_configs().guard = {
+    install_info = { url = path, files = { 'src/parser.c', 'src/scanner.c' } },
+    filetype = 'guard',
+  }
+end
 
 local clients = {}
 
@@ -62,6 +78,7 @@ end
 
 function M.setup(opts)
   M.config = vim.tbl_deep_extend('force', M.config, opts or {})
+  register_grammar(M.config.tree_sitter)
   local group = vim.api.nvim_create_augroup('guardband', { clear = true })
   vim.api.nvim_create_autocmd({ 'BufRead', 'BufNewFile' }, {
     group = group,
@@ -75,6 +92,10 @@ function M.setup(opts)
     pattern = 'guard',
     callback = function(args)
       vim.bo[args.buf].commentstring = '// %s'
+      if M.config.tree_sitter and vim.treesitter and vim.treesitter.start then
+        -- Highlighting from the grammar once its parser is installed.
+        pcall(vim.treesitter.start, args.buf, 'guard')
+      end
       M.attach(args.buf)
     end,
   })
