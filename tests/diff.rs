@@ -27,13 +27,20 @@ fn edit(file: &Path, from: &str, to: &str) {
     std::fs::write(file, text.replacen(from, to, 1)).expect("write");
 }
 
-/// A folder holding the examples twice: `before` as they are, `after`
-/// with four edits.
-fn two_revisions(name: &str) -> std::path::PathBuf {
+/// A folder holding the examples twice, as `before` and `after`; returns
+/// the folder and `after`.
+fn two_copies(name: &str) -> (std::path::PathBuf, std::path::PathBuf) {
     let dir = temp_dir(name);
     let (before, after) = (dir.join("before"), dir.join("after"));
     copy_tree(&root().join("examples"), &before);
     copy_tree(&root().join("examples"), &after);
+    (dir, after)
+}
+
+/// A folder holding the examples twice: `before` as they are, `after`
+/// with four edits.
+fn two_revisions(name: &str) -> std::path::PathBuf {
+    let (dir, after) = two_copies(name);
     let aux = after.join("flawed/aux_rail.guard");
     edit(&aux, "ratio       = 4000", "ratio       = 5000");
     edit(&aux, "output       = 3.3 V ", "output       = 3.3 V ± 2 %");
@@ -155,10 +162,7 @@ fn the_same_revision_twice_moves_nothing_and_a_missing_one_is_an_error() {
 // 0.104 V → 0.124 V.
 #[test]
 fn a_supply_that_moved_is_listed_with_its_droop() {
-    let dir = temp_dir("diff-supply");
-    let (before, after) = (dir.join("before"), dir.join("after"));
-    copy_tree(&root().join("examples"), &before);
-    copy_tree(&root().join("examples"), &after);
+    let (dir, after) = two_copies("diff-supply");
     edit(
         &after.join("tern_cell.guard"),
         "resistance = 120 mohm .. 250 mohm",
@@ -186,10 +190,7 @@ fn a_supply_that_moved_is_listed_with_its_droop() {
 // corner: the box (the regulator's own 0.35 A .. 1.2 A) does not move.
 #[test]
 fn a_figure_that_moved_at_one_corner_is_named_by_it() {
-    let dir = temp_dir("diff-corner");
-    let (before, after) = (dir.join("before"), dir.join("after"));
-    copy_tree(&root().join("examples"), &before);
-    copy_tree(&root().join("examples"), &after);
+    let (dir, after) = two_copies("diff-corner");
     edit(
         &after.join("sensor_rail.guard"),
         "full_gate_current = 0.7 A .. 1.2 A",
