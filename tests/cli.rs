@@ -100,8 +100,13 @@ fn every_rule_fixture_fails_and_passes_as_named() {
         let rule = rule_dir.file_name().unwrap().to_string_lossy().into_owned();
         for file in std::fs::read_dir(&rule_dir).unwrap() {
             let file = file.unwrap().path();
+            if file.extension().is_none_or(|e| e != "guard") {
+                continue;
+            }
             let name = file.file_stem().unwrap().to_string_lossy().into_owned();
-            let (_, report) = check_json(&rule_dir, &[file.file_name().unwrap().to_str().unwrap()]);
+            let args = rule_fixture_args(&rule_dir, file.file_name().unwrap().to_str().unwrap());
+            let args: Vec<&str> = args.iter().map(String::as_str).collect();
+            let (_, report) = check_json(&rule_dir, &args);
             let rules = rules_of(&report);
             if name.starts_with("fail") {
                 assert!(

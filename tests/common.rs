@@ -82,3 +82,34 @@ pub fn editor_present(program: &str, packages: &str) -> bool {
     eprintln!("skipped: {program} is not installed; the test did not run");
     false
 }
+
+/// The check arguments for a rule fixture `name` (a `.guard` file) in
+/// `dir`: the file, and its results files when it has some beside it
+/// (`fail.results.csv` or `fail.results.json` for `fail.guard`), for the
+/// rules that hold evidence against the spec.
+pub fn rule_fixture_args(dir: &Path, name: &str) -> Vec<String> {
+    let stem = name.trim_end_matches(".guard");
+    let mut args = vec![name.to_string()];
+    for ext in ["csv", "json"] {
+        let results = format!("{stem}.results.{ext}");
+        if dir.join(&results).is_file() {
+            args.push("--evidence".into());
+            args.push(results);
+        }
+    }
+    args
+}
+
+/// Copies the folder `from` into `to`, recursively.
+pub fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("mkdir");
+    for entry in std::fs::read_dir(from).expect("read dir") {
+        let entry = entry.expect("entry");
+        let target = to.join(entry.file_name());
+        if entry.file_type().expect("type").is_dir() {
+            copy_dir(&entry.path(), &target);
+        } else {
+            std::fs::copy(entry.path(), &target).expect("copy");
+        }
+    }
+}

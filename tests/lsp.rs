@@ -4,7 +4,7 @@
 mod common;
 mod lsp_client;
 
-use common::{check_json, guardband, root, temp_dir};
+use common::{check_json, copy_dir, guardband, root, temp_dir};
 use lsp_client::{Client, frame, uri};
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
@@ -15,19 +15,6 @@ fn examples_copy(name: &str) -> PathBuf {
     let dir = temp_dir(name);
     copy_dir(&root().join("examples"), &dir);
     dir.canonicalize().expect("canonical")
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).expect("mkdir");
-    for entry in std::fs::read_dir(from).expect("read dir") {
-        let entry = entry.expect("entry");
-        let target = to.join(entry.file_name());
-        if entry.file_type().expect("type").is_dir() {
-            copy_dir(&entry.path(), &target);
-        } else {
-            std::fs::copy(entry.path(), &target).expect("copy");
-        }
-    }
 }
 
 /// Line and UTF-16 column of the `nth` occurrence of `needle`, plus `shift` columns.
@@ -420,7 +407,8 @@ fn definition_references_and_rename_across_imports() {
     );
     let refs = refs.as_array().expect("refs");
     assert_eq!(refs.len(), 2, "{refs:?}");
-    // Rename the pin `vout`: its name, `pin = vout` three times, `carries = vout` twice and `force vout`,
+    // Rename the pin `vout`: its name, `pin = vout` four times, `carries = vout` twice, `force vout`
+    // and the circuit's `port vout`,
     // each once though the corners copy them.
     let prepare = client.request(
         "textDocument/prepareRename",
@@ -432,7 +420,7 @@ fn definition_references_and_rename_across_imports() {
         json!({ "textDocument": doc(&u), "position": pos16(&text, "pin vout", 0, 5), "newName": "out_pin" }),
     );
     let edits = edit["changes"][u.as_str()].as_array().expect("edits");
-    assert_eq!(edits.len(), 7, "{edits:?}");
+    assert_eq!(edits.len(), 9, "{edits:?}");
     // A name already taken in the regulator is refused.
     let clash = client.request_full(
         "textDocument/rename",
@@ -527,12 +515,12 @@ fn completion_offers_fields_units_names_and_choices() {
         "{choices:?}"
     );
     // After a number in a capacitance: capacitance units only.
-    let edited = text.replace("capacitance = 1 uF ± 20 %", "capacitance = 1 u");
+    let edited = text.replace("capacitance  = 1 uF ± 20 %", "capacitance  = 1 u");
     client.notify(
         "textDocument/didChange",
         json!({ "textDocument": { "uri": u, "version": 2 }, "contentChanges": [{ "text": edited }] }),
     );
-    let units = labels(&mut client, pos16(&edited, "capacitance = 1 u", 0, 17));
+    let units = labels(&mut client, pos16(&edited, "capacitance  = 1 u", 0, 18));
     assert!(units.contains(&"uF".to_string()), "{units:?}");
     assert!(!units.contains(&"uA".to_string()), "{units:?}");
     // After `=` in a value: names in scope, and after a dot, the members.
@@ -1374,4 +1362,42 @@ fn renaming_a_block_renames_its_restatement_in_a_corner() {
     assert_eq!(renamed.matches("limit main_limit").count(), 2, "{renamed}");
     assert!(!renamed.contains("sensed"), "{renamed}");
     assert_eq!(client.stop(), Some(0));
+}
+
+/// Hover on a fault case or analysis shows its measurements from the
+/// results files `guardband.toml` names, per corner, with where each is;
+/// a measurement that breaks a requirement is published as a diagnostic.
+#[test]
+fn a_fault_hover_shows_its_evidence_beside_the_derived_bound() {
+    let dir = examples_copy("lsp-evidence");
+    std::fs::write(
+        dir.join("bench.csv"),
+        "case,corner,quantity,value,unit\n\
+         sensor_rail.vout_short,weak,current,158,mA\n\
+         sensor_rail.limit_loop,weak,phase_margin,41,deg\n",
+    )
+    .expect("write");
+    let toml = std::fs::read_to_string(dir.join("guardband.toml")).expect("read");
+    let toml = toml.replacen("[rules]", "evidence = [\"bench.csv\"]\n\n[rules]", 1);
+    std::fs::write(dir.join("guardband.toml"), toml).expect("write");
+    let path = dir.join("sensor_rail.guard");
+    let text = std::fs::read_to_string(&path).expect("read");
+    let u = uri(&path);
+    let mut client = start(&dir, json!({}));
+    client.open(&u, &text, 1);
+    let diags = client.diagnostics(&u, 1);
+    let rules: Vec<&str> = diags.iter().filter_map(|d| d["code"].as_str()).collect();
+    assert!(rules.contains(&"measured-breaks-expectation"), "{diags:?}");
+    assert!(rules.contains(&"evidence-missing"), "{diags:?}");
+    let r = client.request(
+        "textDocument/hover",
+        json!({ "textDocument": doc(&u), "position": pos16(&text, "fault vout_short", 0, 8) }),
+    );
+    let value = r["contents"]["value"].as_str().unwrap_or("");
+    assert!(value.contains("**Evidence (measured)**"), "{value}");
+    assert!(
+        value.contains("`weak` current 158 mA (bench.csv line 2)"),
+        "{value}"
+    );
+    assert!(value.contains("**Expectations**"), "{value}");
 }

@@ -374,3 +374,51 @@ fn the_power_tree_chart_marks_a_regulator_the_droop_takes_out_of_regulation() {
         "{svg}"
     );
 }
+
+/// With results files the summary has the evidence matrix: each case at
+/// each corner planned, measured and passing, or failing (a measurement a
+/// `measured-*` finding points at), with the counts.
+#[test]
+fn the_evidence_matrix_says_planned_measured_and_passing_per_case_and_corner() {
+    let dir = temp_dir("report-evidence");
+    let fixture_dir = fixture("rules/measured-outside-window");
+    std::fs::copy(fixture_dir.join("fail.guard"), dir.join("r.guard")).expect("copy");
+    // The fixture's results with the analysis left out at `high`.
+    let csv = std::fs::read_to_string(fixture_dir.join("fail.results.csv"))
+        .expect("read")
+        .lines()
+        .filter(|l| !l.starts_with("r.loop_check,high"))
+        .collect::<Vec<_>>()
+        .join("\n");
+    std::fs::write(dir.join("bench.csv"), csv).expect("write");
+    let out = dir.join("out");
+    let run = guardband(
+        &dir,
+        &[
+            "report",
+            "r.guard",
+            "--out",
+            "out",
+            "--evidence",
+            "bench.csv",
+        ],
+    );
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let md = std::fs::read_to_string(out.join("summary.md")).expect("summary");
+    assert!(
+        md.contains("### Evidence (planned / measured / passing)"),
+        "{md}"
+    );
+    assert!(
+        md.contains("| fault `short` | ✓ measured, passing (1) | ✗ measured, failing (1 of 1) |"),
+        "{md}"
+    );
+    assert!(
+        md.contains("| analysis `loop_check` | ✓ measured, passing (1) | planned, not measured |"),
+        "{md}"
+    );
+    assert!(
+        md.contains("6 case × corner cells: 4 measured and passing, 1 failing, 1 not measured."),
+        "{md}"
+    );
+}

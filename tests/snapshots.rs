@@ -61,8 +61,14 @@ fn rule_fixtures() {
     for rule_dir in sorted(&dir) {
         let rule = rule_dir.file_name().unwrap().to_string_lossy().into_owned();
         for file in sorted(&rule_dir) {
+            if file.extension().is_none_or(|e| e != "guard") {
+                continue;
+            }
             let name = file.file_name().unwrap().to_string_lossy().into_owned();
-            let run = guardband(&rule_dir, &["check", &name]);
+            let mut args = vec!["check".to_string()];
+            args.extend(rule_fixture_args(&rule_dir, &name));
+            let args: Vec<&str> = args.iter().map(String::as_str).collect();
+            let run = guardband(&rule_dir, &args);
             snapshot(
                 &format!("rule__{rule}__{}", name.trim_end_matches(".guard")),
                 &run.stdout,

@@ -66,8 +66,28 @@ pub fn check_each(
     threads: usize,
     stack_bytes: usize,
 ) -> Result<Findings, (PathBuf, std::io::Error)> {
+    check_each_with_evidence(root, entries, read, threads, stack_bytes, &[])
+}
+
+/// [`check_each`] with results files besides those `guardband.toml`
+/// names (the command line's `--evidence`); an unreadable one is an error
+/// naming it.
+pub fn check_each_with_evidence(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+    threads: usize,
+    stack_bytes: usize,
+    evidence: &[PathBuf],
+) -> Result<Findings, (PathBuf, std::io::Error)> {
     let root = &root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
-    let config_file = &ConfigFile::read(root, read);
+    let mut config_file = ConfigFile::read(root, read);
+    for path in evidence {
+        config_file
+            .add_evidence(path, read)
+            .map_err(|e| (path.clone(), e))?;
+    }
+    let config_file = &config_file;
     let one = |entry: &PathBuf| check_one(root, std::slice::from_ref(entry), read, config_file);
     let units: Vec<Result<Unit, (PathBuf, std::io::Error)>> = if entries.is_empty() {
         // Nothing to check, but the configuration is still checked.
@@ -147,6 +167,7 @@ fn restricted(mut unit: Unit, asked: &HashSet<PathBuf>) -> Unit {
     // The configuration's own problems are kept too.
     let in_asked = |id: FileId| {
         unit.config.file == Some(id)
+            || unit.config.evidence_files.contains(&id)
             || unit
                 .files
                 .get(id.0 as usize)
@@ -242,7 +263,9 @@ fn unit_of(checked: crate::Checked) -> Unit {
         .ws
         .files
         .iter()
-        .filter(|f| Some(f.id) != checked.config.file)
+        .filter(|f| {
+            Some(f.id) != checked.config.file && !checked.config.evidence_files.contains(&f.id)
+        })
         .map(|f| f.path.clone())
         .collect();
     let mut wanted = vec![false; checked.ws.files.len()];

@@ -18,6 +18,14 @@ pub struct Config {
     pub file: Option<FileId>,
     /// Limits on file size, nesting, imports and evaluation (`[limits]`).
     pub limits: guardband_model::Limits,
+    /// The results files named by `evidence = [...]`, as written
+    /// (relative to the workspace root).
+    pub evidence_paths: Vec<String>,
+    /// The results files of this check, as files of its workspace.
+    pub evidence_files: Vec<FileId>,
+    /// What the results files hold (the netlists' hashes are added by the
+    /// check, which knows the circuits).
+    pub evidence: guardband_rules::evidence::Evidence,
 }
 
 fn key_span(text: &str, key: &str) -> std::ops::Range<usize> {
@@ -175,6 +183,18 @@ pub struct ConfigFile {
     config: Config,
     /// Its problems, pointing at [`ConfigFile::UNPLACED`] until applied.
     diagnostics: Vec<Diagnostic>,
+    /// The results files read, each with its measurements and problems
+    /// (pointing at [`ConfigFile::UNPLACED`] until applied).
+    evidence: Vec<EvidenceText>,
+}
+
+/// One results file as read.
+#[derive(Debug, Clone)]
+struct EvidenceText {
+    path: std::path::PathBuf,
+    text: String,
+    measurements: Vec<guardband_rules::evidence::Measurement>,
+    diagnostics: Vec<Diagnostic>,
 }
 
 impl ConfigFile {
@@ -191,16 +211,54 @@ impl ConfigFile {
                 text: None,
                 config: Config::default(),
                 diagnostics: Vec::new(),
+                evidence: Vec::new(),
             };
         };
         let text = String::from_utf8_lossy(&bytes).into_owned();
-        let (config, diagnostics) = Config::parse(&text, Self::UNPLACED);
-        ConfigFile {
+        let (config, mut diagnostics) = Config::parse(&text, Self::UNPLACED);
+        let mut file = ConfigFile {
             path,
-            text: Some(text),
+            text: None,
             config,
-            diagnostics,
+            diagnostics: Vec::new(),
+            evidence: Vec::new(),
+        };
+        for written in file.config.evidence_paths.clone() {
+            let path = root.join(&written);
+            if let Err(e) = file.add_evidence(&path, read) {
+                diagnostics.push(
+                    Diagnostic::error(
+                        "config",
+                        Self::UNPLACED,
+                        key_span(&text, "evidence"),
+                        format!("results file `{written}` cannot be read: {e}"),
+                    )
+                    .primary("named here"),
+                );
+            }
         }
+        file.text = Some(text);
+        file.diagnostics = diagnostics;
+        file
+    }
+
+    /// Reads one more results file (a path the command line names).
+    pub fn add_evidence(
+        &mut self,
+        path: &std::path::Path,
+        read: &guardband_model::Read,
+    ) -> std::io::Result<()> {
+        let bytes = read(path, self.config.limits.max_file_bytes)?;
+        let text = String::from_utf8(bytes)
+            .map_err(|_| std::io::Error::new(std::io::ErrorKind::InvalidData, "not UTF-8 text"))?;
+        let (measurements, diagnostics) = crate::evidence::read(&text, Self::UNPLACED);
+        self.evidence.push(EvidenceText {
+            path: path.to_path_buf(),
+            text,
+            measurements,
+            diagnostics,
+        });
+        Ok(())
     }
 
     /// The limits, for loading files before the rest is applied.
@@ -211,23 +269,40 @@ impl ConfigFile {
     /// Adds the file to `ws` (so that its problems can be shown) and
     /// returns the settings and the problems, pointing into it.
     pub fn apply(&self, ws: &mut Workspace) -> (Config, Vec<Diagnostic>) {
-        let Some(text) = &self.text else {
-            return (self.config.clone(), Vec::new());
-        };
-        let file = ws.add_text_file(self.path.clone(), text.clone());
-        let mut diagnostics = self.diagnostics.clone();
-        for d in &mut diagnostics {
-            d.file = file;
-            for l in &mut d.labels {
-                l.file = file;
-            }
+        let mut config = self.config.clone();
+        let mut diagnostics = Vec::new();
+        if let Some(text) = &self.text {
+            let file = ws.add_text_file(self.path.clone(), text.clone());
+            diagnostics.extend(placed(&self.diagnostics, file));
+            config.file = Some(file);
         }
-        let config = Config {
-            file: Some(file),
-            ..self.config.clone()
-        };
+        config.evidence.given = !self.evidence.is_empty();
+        for e in &self.evidence {
+            let file = ws.add_text_file(e.path.clone(), e.text.clone());
+            config.evidence_files.push(file);
+            diagnostics.extend(placed(&e.diagnostics, file));
+            config
+                .evidence
+                .measurements
+                .extend(e.measurements.iter().cloned().map(|mut m| {
+                    m.file = file;
+                    m
+                }));
+        }
         (config, diagnostics)
     }
+}
+
+/// Problems read before their file joined the workspace, pointing into it.
+fn placed(diagnostics: &[Diagnostic], file: FileId) -> Vec<Diagnostic> {
+    let mut out = diagnostics.to_vec();
+    for d in &mut out {
+        d.file = file;
+        for l in &mut d.labels {
+            l.file = file;
+        }
+    }
+    out
 }
 
 impl Config {
@@ -267,6 +342,7 @@ impl Config {
             "deny",
             "rules",
             "limits",
+            "evidence",
         ];
         for (key, value) in &table {
             match key.as_str() {
@@ -339,6 +415,18 @@ impl Config {
                         key,
                         "`deny` takes a list holding \"warnings\"".into(),
                         "write `deny = [\"warnings\"]`",
+                    )),
+                },
+                "evidence" => match value.as_array().map(|a| {
+                    a.iter()
+                        .map(|v| v.as_str().map(str::to_string))
+                        .collect::<Option<Vec<_>>>()
+                }) {
+                    Some(Some(paths)) => config.evidence_paths = paths,
+                    _ => diags.push(bad(
+                        key,
+                        "`evidence` takes a list of results files".into(),
+                        "write e.g. `evidence = [\"results/bench.json\"]`",
                     )),
                 },
                 "limits" => match value.as_table() {

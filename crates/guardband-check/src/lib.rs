@@ -8,9 +8,10 @@
 pub mod batch;
 pub mod config;
 pub mod drawers;
+pub mod evidence;
 mod root;
 
-pub use batch::{Findings, check_each};
+pub use batch::{Findings, check_each, check_each_with_evidence};
 pub use config::{Config, ConfigFile};
 pub use root::workspace_root;
 
@@ -83,6 +84,24 @@ pub fn check_workspace(
     check_with_config_file(&root, entries, read, &ConfigFile::read(&root, read))
 }
 
+/// [`check_workspace`] with results files besides those `guardband.toml`
+/// names (the command line's `--evidence`), for the report.
+pub fn check_workspace_with_evidence(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &guardband_model::Read,
+    evidence: &[PathBuf],
+) -> Result<Checked, (PathBuf, std::io::Error)> {
+    let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
+    let mut config_file = ConfigFile::read(&root, read);
+    for path in evidence {
+        config_file
+            .add_evidence(path, read)
+            .map_err(|e| (path.clone(), e))?;
+    }
+    check_with_config_file(&root, entries, read, &config_file)
+}
+
 /// [`check_workspace`] with `guardband.toml` already read from the
 /// canonical `root`, for running many checks with one configuration.
 pub fn check_with_config_file(
@@ -108,13 +127,20 @@ pub fn check_with_config_file(
         .map(|v| guardband_rules::derive(&model, model.node(v.root), &config.options))
         .collect();
     let rails = guardband_rules::derive::rail::rails(&model, &derived);
+    let mut config = config;
+    if config.evidence.given || !config.evidence.measurements.is_empty() {
+        config.evidence.netlists = netlist_hashes(&ws, &model, read, config.limits.max_file_bytes);
+    }
     let mut diagnostics = guardband_rules::lint(
         &ws,
         &model,
         &config.options,
-        &derived,
-        &corners,
-        &rails,
+        guardband_rules::Figures {
+            derived: &derived,
+            corners: &corners,
+            rails: &rails,
+        },
+        &config.evidence,
         diagnostics,
     );
     ws.normalize_spans(&mut diagnostics);
@@ -130,6 +156,37 @@ pub fn check_with_config_file(
         rails,
         diagnostics,
     })
+}
+
+/// The file a `circuit` block's `netlist` names: relative to its spec file.
+pub fn netlist_path(ws: &Workspace, circuit: &guardband_model::Node) -> Option<PathBuf> {
+    let written = circuit.text("netlist")?;
+    let spec = &ws.file(circuit.file).path;
+    Some(spec.parent().unwrap_or(Path::new("")).join(written))
+}
+
+/// The content hash of every `circuit` block's netlist, or why it could
+/// not be read, for `evidence-stale`.
+fn netlist_hashes(
+    ws: &Workspace,
+    model: &Model,
+    read: &guardband_model::Read,
+    limit: usize,
+) -> std::collections::HashMap<guardband_model::NodeId, Result<String, String>> {
+    let mut out = std::collections::HashMap::new();
+    for reg in model.regulators() {
+        let Some(circuit) = model.child(reg, guardband_model::BlockKind::Circuit) else {
+            continue;
+        };
+        let Some(path) = netlist_path(ws, circuit) else {
+            continue;
+        };
+        let hash = read(&path, limit)
+            .map(|bytes| guardband_rules::evidence::content_hash(&bytes))
+            .map_err(|e| format!("{} cannot be read: {e}", path.display()));
+        out.insert(circuit.id, hash);
+    }
+    out
 }
 
 /// [`check_workspace`] of `entries` and of every other spec file under

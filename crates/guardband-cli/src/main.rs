@@ -8,6 +8,7 @@ mod render;
 mod repo;
 mod revision;
 mod sarif;
+mod testbench;
 mod write;
 
 use clap::{Parser, Subcommand, ValueEnum};
@@ -91,6 +92,10 @@ enum Command {
         /// Files checked at once (default: one per core).
         #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
         jobs: Option<u16>,
+        /// A results file (JSON from `testbench --run`, or CSV) to hold
+        /// against the spec, besides those `guardband.toml` names; repeatable.
+        #[arg(long, value_name = "FILE")]
+        evidence: Vec<PathBuf>,
     },
     /// Rewrite .guard files in the canonical layout (or, with --check, list
     /// the ones that are not).
@@ -109,6 +114,10 @@ enum Command {
         /// The folder to write into (created if needed).
         #[arg(long, value_name = "DIR")]
         out: PathBuf,
+        /// A results file to hold against the spec (its evidence matrix);
+        /// repeatable.
+        #[arg(long, value_name = "FILE")]
+        evidence: Vec<PathBuf>,
     },
     /// Compare the derived figures, findings and waivers of two revisions
     /// of a workspace (two folders, or one folder at a git revision and in
@@ -130,6 +139,25 @@ enum Command {
         /// Write the output to this file instead of standard output.
         #[arg(long, value_name = "FILE")]
         output: Option<PathBuf>,
+    },
+    /// Write an ngspice test bench for each fault case and analysis at each
+    /// corner of every regulator that names its `circuit`; with --run, run
+    /// them and write the measurements to OUT/results.json.
+    Testbench {
+        /// Files or folders (default: the current folder).
+        paths: Vec<PathBuf>,
+        /// The folder to write the decks (and results) into.
+        #[arg(long)]
+        out: PathBuf,
+        /// Run each deck with ngspice (`ngspice -b`) and collect the results.
+        #[arg(long)]
+        run: bool,
+        /// Seconds each deck may run before it is stopped.
+        #[arg(long, default_value_t = 120)]
+        timeout: u64,
+        /// Decks run at once (default: one per core).
+        #[arg(long)]
+        jobs: Option<usize>,
     },
     /// Run the language server on standard input and output.
     Lsp,
@@ -180,10 +208,43 @@ fn run() -> ExitCode {
             output,
             exit_zero,
             jobs,
-        } => check(paths, format, deny.is_some(), output, exit_zero, jobs),
+            evidence,
+        } => check(
+            paths,
+            format,
+            deny.is_some(),
+            output,
+            exit_zero,
+            jobs,
+            &evidence,
+        ),
         Command::Explain { rule, list, format } => explain(rule, list, format),
         Command::Fmt { paths, check } => fmt(paths, check),
-        Command::Report { paths, out } => report(paths, &out),
+        Command::Report {
+            paths,
+            out,
+            evidence,
+        } => report(paths, &out, &evidence),
+        Command::Testbench {
+            paths,
+            out,
+            run,
+            timeout,
+            jobs,
+        } => match load_checked(paths, &[]) {
+            Ok(checked) => testbench::testbench(
+                &checked,
+                &testbench::Request {
+                    out: &out,
+                    run,
+                    timeout: std::time::Duration::from_secs(timeout),
+                    jobs: jobs.unwrap_or_else(|| {
+                        std::thread::available_parallelism().map_or(1, |n| n.get())
+                    }),
+                },
+            ),
+            Err(code) => code,
+        },
         Command::Diff {
             before,
             after,
@@ -218,6 +279,7 @@ fn check(
     output: Option<PathBuf>,
     exit_zero: bool,
     jobs: Option<u16>,
+    evidence: &[PathBuf],
 ) -> ExitCode {
     let (root, files) = match find_files(paths) {
         Ok(found) => found,
@@ -230,12 +292,17 @@ fn check(
     });
     // Each file is checked on its own and dropped once its findings are
     // kept, so memory stays bounded however many files there are.
-    let checked = match guardband_check::check_each(
+    let evidence: Vec<PathBuf> = evidence
+        .iter()
+        .map(|p| std::path::absolute(p).unwrap_or_else(|_| p.clone()))
+        .collect();
+    let checked = match guardband_check::check_each_with_evidence(
         &root,
         &files,
         &guardband_model::read_source,
         threads,
         guardband_check::STACK_BYTES,
+        &evidence,
     ) {
         Ok(c) => c,
         Err((path, e)) => {
@@ -339,9 +406,21 @@ fn find_files(paths: Vec<PathBuf>) -> Result<(PathBuf, Vec<PathBuf>), ExitCode> 
 /// Finds the files under `paths` and runs the whole check on them as one
 /// workspace (the model is kept, for the report); on a usage or I/O failure
 /// prints why and returns the exit code.
-fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_check::Checked, ExitCode> {
+fn load_checked(
+    paths: Vec<PathBuf>,
+    evidence: &[PathBuf],
+) -> Result<guardband_check::Checked, ExitCode> {
     let (root, files) = find_files(paths)?;
-    match guardband_check::check_workspace(&root, &files, &guardband_model::read_source) {
+    let evidence: Vec<PathBuf> = evidence
+        .iter()
+        .map(|p| std::path::absolute(p).unwrap_or_else(|_| p.clone()))
+        .collect();
+    match guardband_check::check_workspace_with_evidence(
+        &root,
+        &files,
+        &guardband_model::read_source,
+        &evidence,
+    ) {
         Ok(c) => Ok(c),
         Err((path, e)) => {
             eprintln!("guardband: cannot read {}: {e}", path.display());
@@ -350,8 +429,8 @@ fn load_checked(paths: Vec<PathBuf>) -> Result<guardband_check::Checked, ExitCod
     }
 }
 
-fn report(paths: Vec<PathBuf>, out: &std::path::Path) -> ExitCode {
-    let checked = match load_checked(paths) {
+fn report(paths: Vec<PathBuf>, out: &std::path::Path, evidence: &[PathBuf]) -> ExitCode {
+    let checked = match load_checked(paths, evidence) {
         Ok(c) => c,
         Err(code) => return code,
     };
@@ -446,10 +525,10 @@ fn diff(
         return ExitCode::from(2);
     }
     let earlier = match before {
-        Side::Folder(p) => load_checked(vec![p.to_path_buf()]),
+        Side::Folder(p) => load_checked(vec![p.to_path_buf()], &[]),
         Side::Revision(p, rev) => load_at_revision(p, rev),
     };
-    for checked in [earlier, load_checked(vec![after.to_path_buf()])] {
+    for checked in [earlier, load_checked(vec![after.to_path_buf()], &[])] {
         match checked {
             Ok(c) => snapshots.push(diff::snapshot(&c)),
             Err(code) => return code,

@@ -160,6 +160,10 @@ pub const LANGUAGE_DIAGNOSTICS: &[(&str, &str)] = &[
     ),
     ("config", "a problem in `guardband.toml`"),
     (
+        "evidence",
+        "a record of a results file that cannot be read (a missing column, a number that does not parse, a unit that does not fit the quantity): it is left out",
+    ),
+    (
         "limit",
         "a file, nesting, import or evaluation limit was reached (see `[limits]`)",
     ),

@@ -160,6 +160,14 @@ impl Node {
         }
     }
 
+    /// The string of a text field (`netlist = "ldo.cir"`).
+    pub fn text(&self, key: &str) -> Option<&str> {
+        match self.field(key).and_then(|f| f.value.as_ref()) {
+            Some(FieldValue::Text(t)) => Some(t),
+            _ => None,
+        }
+    }
+
     /// The block a reference field names.
     pub fn reference(&self, key: &str) -> Option<NodeId> {
         match self.field(key).and_then(|f| f.value.as_ref()) {

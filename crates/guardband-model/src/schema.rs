@@ -26,6 +26,9 @@ pub enum BlockKind {
     /// A named operating corner of a regulator: its ambient, supply and
     /// process, and the values that differ there.
     Corner,
+    /// The circuit under test: a SPICE netlist and how its subcircuit's
+    /// ports map to the spec's pins, for generated test benches.
+    Circuit,
 }
 
 /// What a field's value must be.
@@ -203,6 +206,7 @@ pub const BLOCKS: &[BlockSpec] = &[
             BlockKind::Fault,
             BlockKind::Analysis,
             BlockKind::Corner,
+            BlockKind::Circuit,
         ],
         fields: &[
             f(
@@ -374,6 +378,11 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "role",
                 FieldType::Choice(PIN_ROLES),
                 "what the pin is: `output` (its capacitance is charged at startup), `supply`, `ground` or `other`",
+            ),
+            f(
+                "bias_current",
+                CURRENT,
+                "the most current the pin draws by itself when held up from outside (its feedback divider, bias circuits): it adds to the current of a short to a supply at the pin",
             ),
             DESCRIPTION,
         ],
@@ -819,6 +828,43 @@ pub const BLOCKS: &[BlockSpec] = &[
                 "theta_ja",
                 q(Dimension::THERMAL_RESISTANCE),
                 "junction-to-ambient thermal resistance at this corner",
+            ),
+            DESCRIPTION,
+        ],
+    },
+    BlockSpec {
+        kind: BlockKind::Circuit,
+        keyword: "circuit",
+        named: false,
+        doc: "the circuit under test: a SPICE netlist in the workspace, its subcircuit and how the subcircuit's ports map to the spec's pins, for `guardband testbench`",
+        children: &[],
+        fields: &[
+            f(
+                "netlist",
+                FieldType::Text,
+                "the netlist file, relative to this spec file",
+            ),
+            f(
+                "subcircuit",
+                FieldType::Text,
+                "the name of the subcircuit (`.subckt NAME ...`) that is the regulator",
+            ),
+            named(
+                "port",
+                "*",
+                FieldType::Text,
+                false,
+                "the subcircuit port a spec node connects to: `input`, `ground`, a pin, `gate_drive` and `gate_device` (the pass gate's driving and device sides)",
+            ),
+            f(
+                "short_resistance",
+                q(Dimension::RESISTANCE),
+                "the resistance a generated bench puts on a shorted pin (default 10 mΩ)",
+            ),
+            f(
+                "rise_time",
+                TIME,
+                "the supply ramp of a generated startup bench (default 1 us)",
             ),
             DESCRIPTION,
         ],

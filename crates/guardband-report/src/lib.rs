@@ -9,6 +9,7 @@
 pub mod chart;
 pub mod coverage;
 pub mod diff;
+pub mod evidence;
 pub mod figures;
 pub mod tree_chart;
 
@@ -162,6 +163,10 @@ pub fn render(checked: &Checked, chart_out: &mut dyn FnMut(&str, &str)) -> Strin
         corner_table(checked, reg, &mut md);
         let _ = writeln!(md, "\n### Fault coverage\n");
         md.push_str(&coverage::matrix(model, reg));
+        if let Some(evidence) = evidence::matrix(checked, reg) {
+            let _ = writeln!(md, "\n### Evidence (planned / measured / passing)\n");
+            md.push_str(&evidence);
+        }
         let _ = writeln!(md, "\n### Open findings\n");
         if findings.is_empty() {
             let _ = writeln!(md, "None.\n");

@@ -18,6 +18,12 @@ pub struct Context<'a> {
     /// Every regulator's named corners, for the rules about corners
     /// themselves (empty in the runs at one corner).
     pub variants: &'a [guardband_model::Variant],
+    /// Each regulator derived at each of its named corners (empty in the
+    /// runs at one corner), for the evidence rules, which compare a
+    /// measurement at a corner with the figures derived there.
+    pub corner_derived: &'a [Derived],
+    /// The measured evidence the results files hold.
+    pub evidence: &'a crate::evidence::Evidence,
     /// The rule being run.
     pub rule: &'static RuleInfo,
 }

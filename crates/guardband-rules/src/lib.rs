@@ -12,6 +12,7 @@ pub mod compare;
 pub mod context;
 mod corner_findings;
 pub mod derive;
+pub mod evidence;
 pub mod options;
 pub mod physics;
 mod registry;
@@ -51,6 +52,17 @@ fn guessed_items(ws: &Workspace) -> Vec<(guardband_model::FileId, std::ops::Rang
     out
 }
 
+/// What the rules run over: the derivations of one check.
+#[derive(Clone, Copy)]
+pub struct Figures<'a> {
+    /// One per regulator, in the order of [`Model::regulators`].
+    pub derived: &'a [Derived],
+    /// One per regulator and named corner, in the order of [`Model::variants`].
+    pub corners: &'a [Derived],
+    /// Every shared `supply` item with what draws from it.
+    pub rails: &'a [derive::rail::Rail],
+}
+
 /// Runs every enabled rule over the derivations (one per regulator, in the
 /// order of [`Model::regulators`]; `corners` holds one per regulator and
 /// named corner, in the order of [`Model::variants`]) and applies waivers.
@@ -64,14 +76,31 @@ pub fn lint(
     ws: &Workspace,
     model: &Model,
     options: &Options,
-    derived: &[Derived],
-    corners: &[Derived],
-    rails: &[derive::rail::Rail],
+    figures: Figures,
+    evidence: &evidence::Evidence,
     mut diagnostics: Vec<Diagnostic>,
 ) -> Vec<Diagnostic> {
+    let Figures {
+        derived,
+        corners,
+        rails,
+    } = figures;
     let mut findings = Vec::new();
+    let plain_run = |derived: &[Derived], variants, findings: &mut Vec<Diagnostic>| {
+        let run = Run {
+            ws,
+            model,
+            options,
+            derived,
+            rails,
+            variants,
+            corner_derived: corners,
+            evidence,
+        };
+        run_rules(&run, findings)
+    };
     if model.variants.is_empty() {
-        run_rules(ws, model, options, derived, rails, &[], &mut findings);
+        plain_run(derived, &[], &mut findings);
     } else {
         let with_corners: std::collections::HashSet<_> =
             model.variants.iter().map(|v| v.regulator).collect();
@@ -80,20 +109,21 @@ pub fn lint(
             .filter(|d| !with_corners.contains(&d.regulator))
             .cloned()
             .collect();
-        let variants = &model.variants;
-        run_rules(ws, model, options, &plain, rails, variants, &mut findings);
+        plain_run(&plain, &model.variants, &mut findings);
         let mut at_corners = Vec::with_capacity(corners.len());
         for d in corners {
             let mut found = Vec::new();
-            run_rules(
+            let run = Run {
                 ws,
                 model,
                 options,
-                std::slice::from_ref(d),
-                &[],
-                &[],
-                &mut found,
-            );
+                derived: std::slice::from_ref(d),
+                rails: &[],
+                variants: &[],
+                corner_derived: &[],
+                evidence,
+            };
+            run_rules(&run, &mut found);
             at_corners.push((d.regulator, found));
         }
         findings.extend(corner_findings::merge(model, at_corners));
@@ -115,15 +145,20 @@ pub fn lint(
 /// One run of every enabled rule over `derived` (and `rails` and
 /// `variants`, for the rules about the whole model), stamping each finding
 /// with its rule and severity.
-fn run_rules(
-    ws: &Workspace,
-    model: &Model,
-    options: &Options,
-    derived: &[Derived],
-    rails: &[derive::rail::Rail],
-    variants: &[guardband_model::Variant],
-    findings: &mut Vec<Diagnostic>,
-) {
+/// What one run of every rule sees (see [`context::Context`]).
+struct Run<'a> {
+    ws: &'a Workspace,
+    model: &'a Model,
+    options: &'a Options,
+    derived: &'a [Derived],
+    rails: &'a [derive::rail::Rail],
+    variants: &'a [guardband_model::Variant],
+    corner_derived: &'a [Derived],
+    evidence: &'a evidence::Evidence,
+}
+
+fn run_rules(run: &Run, findings: &mut Vec<Diagnostic>) {
+    let options = run.options;
     for rule in registry() {
         let severity = match options.severities.get(rule.name) {
             Some(Some(s)) => *s,
@@ -134,12 +169,14 @@ fn run_rules(
             },
         };
         let ctx = context::Context {
-            ws,
-            model,
+            ws: run.ws,
+            model: run.model,
             options,
-            derived,
-            rails,
-            variants,
+            derived: run.derived,
+            rails: run.rails,
+            variants: run.variants,
+            corner_derived: run.corner_derived,
+            evidence: run.evidence,
             rule,
         };
         let mut found = Vec::new();

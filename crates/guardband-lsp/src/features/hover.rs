@@ -286,6 +286,9 @@ fn derived_block(analysis: &Analysis, node: &Node, key: Option<&str>, out: &mut 
     if node.kind == BlockKind::Fault {
         fault_expectations(model, derived, node, out);
     }
+    if matches!(node.kind, BlockKind::Fault | BlockKind::Analysis) {
+        case_evidence(analysis, regulator, node, out);
+    }
     let wanted = |r_node: NodeId, role: Role| match node.kind {
         BlockKind::Regulator => r_node == node.id || role == Role::NotDerived,
         BlockKind::Limit | BlockKind::Conductor | BlockKind::Pass | BlockKind::CycleBudget => {
@@ -399,6 +402,33 @@ fn fault_expectations(
     }
     if !lines.is_empty() {
         let _ = writeln!(out, "**Expectations**\n\n{}\n", lines.join("\n"));
+    }
+}
+
+/// The measurements the results files hold for a fault case or analysis,
+/// per corner, with where each is (the evidence rules judge them).
+fn case_evidence(analysis: &Analysis, regulator: &Node, case: &Node, out: &mut String) {
+    let evidence = &analysis.checked.config.evidence;
+    let mut lines = Vec::new();
+    for m in evidence
+        .of(regulator.key())
+        .filter(|m| m.case == case.key())
+    {
+        let Some(kind) = guardband_rules::evidence::quantity_kind(case.kind, &m.quantity) else {
+            continue;
+        };
+        lines.push(format!(
+            "- `{}` {} {} ({})",
+            m.corner,
+            m.quantity,
+            in_unit(m.value, kind, Some(&m.unit)),
+            guardband_rules::evidence::place(&analysis.checked.ws, m)
+        ));
+    }
+    if !lines.is_empty() {
+        let _ = writeln!(out, "**Evidence (measured)**\n\n{}\n", lines.join("\n"));
+    } else if evidence.given {
+        let _ = writeln!(out, "**Evidence (measured)**: none in the results files\n");
     }
 }
 

@@ -105,7 +105,11 @@ fn uses(analysis: &Analysis, symbol: Symbol) -> Vec<(FileId, std::ops::Range<usi
             while let Some(id) = stack.pop() {
                 let m = model.node(id);
                 stack.extend(m.children.iter().copied());
-                for f in m.fields.iter().filter(|f| f.keyword == "force") {
+                // `force PIN` in an analysis and `port PIN` in a circuit
+                // name the pin by its name.
+                let by_name =
+                    |f: &&guardband_model::Field| f.keyword == "force" || f.keyword == "port";
+                for f in m.fields.iter().filter(by_name) {
                     if f.name.as_deref() == Some(node.key()) {
                         out.push((m.file, f.key_span.clone()));
                     }

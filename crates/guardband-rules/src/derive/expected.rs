@@ -139,7 +139,22 @@ fn lookup(d: &Derived, fault: &Node, event: &str, name: &str) -> Result<Expected
             // Only a forcing voltage wholly above regulation has a known
             // least current (the diode's); below it the load shares it.
             let lo = if s.forward.is_none() { r.lo } else { None };
-            bounded(lo, s.current_hi(), why)
+            // What the pin draws by itself (its divider) flows too, on top.
+            match s.pin_bias {
+                Some(bias) => bounded(
+                    lo,
+                    s.current_hi().map(|hi| hi + bias),
+                    format!(
+                        "{why}, plus the pin's `bias_current` {}",
+                        crate::show::in_unit(
+                            bias,
+                            guardband_units::QuantityKind::CURRENT,
+                            Some("uA")
+                        )
+                    ),
+                ),
+                None => bounded(lo, s.current_hi(), why),
+            }
         }
         ("short_to_supply" | "reverse_current", "junction") => {
             let s = reverse_case(d, fault)?;

@@ -60,6 +60,10 @@ pub struct ReverseCase {
     /// worst point of an overload when the regulator can source into the
     /// forcing supply (`None` when neither heats the die).
     pub heat: Figure<Option<Heat>>,
+    /// The most the faulted pin draws by itself (its `bias_current`), A:
+    /// it flows between the pin and the forcing supply besides the pass
+    /// device's current. `None` when the pin states none.
+    pub pin_bias: Option<f64>,
 }
 
 /// The reverse current through the pass device.
@@ -154,6 +158,10 @@ fn reverse_case(
         }),
         (_, h) => h,
     };
+    let pin_bias = fault
+        .reference("pin")
+        .and_then(|p| model.node(p).quantity("bias_current"))
+        .map(|v| v.hi.max(0.0));
     Ok(ReverseCase {
         fault: fault.id,
         event,
@@ -161,6 +169,7 @@ fn reverse_case(
         forward,
         reverse,
         heat,
+        pin_bias,
     })
 }
 

@@ -50,6 +50,16 @@ crate::registry::declare_rules! {
         "regulators starting together that droop a shared supply to its lockout, below a regulator's minimum supply, or past its current limit";
     corner_envelope: "corner-envelope", Some(Severity::Error),
         "a named corner outside the regulator's range, or an end of a range that no corner reaches";
+    measured_breaks_expectation: "measured-breaks-expectation", Some(Severity::Error),
+        "a measured figure that breaks its fault case's expectation or its analysis' requirement";
+    measured_outside_window: "measured-outside-window", Some(Severity::Error),
+        "a measured figure outside the window the spec derives for it at that corner";
+    evidence_missing: "evidence-missing", Some(Severity::Warning),
+        "a fault case or analysis without a measurement at a corner, once results files are given";
+    evidence_stale: "evidence-stale", Some(Severity::Warning),
+        "evidence made from another version of the spec or the netlist than the one checked";
+    evidence_unmatched: "evidence-unmatched", Some(Severity::Error),
+        "a measurement naming a case, corner or quantity its regulator does not have";
     figure_not_derived: "figure-not-derived", Some(Severity::Info),
         "a figure not derived because an input is missing or has an error";
 }
