@@ -5,6 +5,7 @@
 //! The model never sees an LSP position or a terminal; spans are bytes.
 
 mod build;
+mod circuit;
 mod corners;
 mod diagnostic;
 mod eval;
@@ -58,6 +59,7 @@ pub fn check_with(ws: &Workspace, limits: &Limits) -> (Model, Vec<Diagnostic>) {
     }
     let mut model = build::build(ws, &mut diagnostics);
     eval::evaluate(ws, &mut model, &mut diagnostics, limits.max_eval_steps);
+    circuit::check_ports(&model, &mut diagnostics);
     if !model.variants.is_empty() {
         corners::settle(&mut model);
         corners::drop_repeats(&mut diagnostics);
