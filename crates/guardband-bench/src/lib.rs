@@ -94,6 +94,7 @@ pub fn regulator(p: &Params) -> String {
     supply       = 2.7 V .. 4.4 V
     output       = 1.8 V ± 2 %
     load         = 0 mA .. {load} mA
+    quiescent    = 80 uA .. 150 uA
     ambient      = -20 °C .. 70 °C
     junction_max = 125 °C
     theta_ja     = 60 K/W ± 10 %
@@ -166,6 +167,7 @@ pub fn twin(p: &Params) -> Value {
         "supply": { "min": 2.7, "max": 4.4, "unit": "V" },
         "output": { "nominal": 1.8, "unit": "V", "tolerance": { "plus_minus": 2, "unit": "%" } },
         "load": { "min": 0, "max": p.load_ma, "unit": "mA" },
+        "quiescent": { "min": 80, "max": 150, "unit": "uA" },
         "ambient": { "min": -20, "max": 70, "unit": "°C" },
         "junction_max": { "value": 125, "unit": "°C" },
         "theta_ja": { "nominal": 60, "unit": "K/W", "tolerance": { "plus_minus": 10, "unit": "%" } },
