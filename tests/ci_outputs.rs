@@ -362,15 +362,27 @@ fn output_file_and_exit_zero() {
     );
 }
 
-// `--format json` streams one finding at a time; its text is exactly
-// serde_json's pretty form of the whole document (parsed and printed again
-// it does not change), with findings and without.
+// `--format json` and `--format sarif` stream one finding at a time; the
+// text is exactly serde_json's pretty form of the whole document (parsed and
+// printed again it does not change), with findings and without.
 #[test]
-fn streamed_json_is_the_pretty_form_of_the_document() {
-    for target in ["examples", "examples/radio_rail.guard"] {
-        let run = common::guardband(&common::root(), &["check", "--format", "json", target]);
-        let value: serde_json::Value = serde_json::from_str(&run.stdout).expect("json");
-        let again = serde_json::to_string_pretty(&value).expect("print") + "\n";
-        assert_eq!(run.stdout, again, "{target}");
+fn streamed_json_and_sarif_are_the_pretty_form_of_the_document() {
+    for format in ["json", "sarif"] {
+        for target in ["examples", "examples/radio_rail.guard"] {
+            let run = common::guardband(&common::root(), &["check", "--format", format, target]);
+            let value: serde_json::Value = serde_json::from_str(&run.stdout).expect("json");
+            let again = serde_json::to_string_pretty(&value).expect("print") + "\n";
+            assert_eq!(run.stdout, again, "{format} {target}");
+            let findings = match format {
+                "json" => &value["diagnostics"],
+                _ => &value["runs"][0]["results"],
+            };
+            if target == "examples" {
+                assert!(
+                    findings.as_array().is_some_and(|a| !a.is_empty()),
+                    "{format}: findings shown"
+                );
+            }
+        }
     }
 }

@@ -211,14 +211,16 @@ fn use_cannot_leave_the_workspace_by_dots_absolute_paths_or_links() {
     }
 }
 
-/// Every source file of the product (not the tests), recursively.
+/// Every source file of the product (not the tests, not the benchmarks:
+/// `guardband-bench` is never shipped, and it starts the `guardband` binary,
+/// valgrind and the server to measure them), recursively.
 fn sources(dir: &Path, out: &mut Vec<std::path::PathBuf>) {
     for entry in std::fs::read_dir(dir).expect("read dir").flatten() {
         let path = entry.path();
         if path.is_dir() {
             if path
                 .file_name()
-                .is_some_and(|n| n != "target" && n != "benches")
+                .is_some_and(|n| n != "target" && n != "benches" && n != "guardband-bench")
             {
                 sources(&path, out);
             }

@@ -337,11 +337,7 @@ fn check(
                 files_checked,
             ),
             Format::Json => render::json(out, ws, diagnostics, files_checked),
-            Format::Sarif => {
-                let log = sarif::log(ws, diagnostics, &repo_base());
-                let text = serde_json::to_string_pretty(&log).unwrap_or_default();
-                writeln!(out, "{text}")
-            }
+            Format::Sarif => sarif::write(out, ws, diagnostics, &repo_base()),
             Format::Github => github::annotations(out, ws, diagnostics, &repo_base()),
         };
         result.and_then(|()| out.flush())

@@ -14,6 +14,7 @@
 use guardband_model::{Diagnostic, LANGUAGE_DIAGNOSTICS, Severity, Workspace};
 use serde_json::{Value, json};
 use std::collections::HashMap;
+use std::io::Write;
 use std::path::Path;
 
 /// Where users can read about the tool. The project has no published home
@@ -171,52 +172,50 @@ fn location(
     })
 }
 
-/// The SARIF log of one check; `base` is the repository root (see
-/// [`crate::repo::base`]).
-pub fn log(ws: &Workspace, diagnostics: &[Diagnostic], base: &Path) -> Value {
-    let rules = rules();
-    let index: HashMap<&str, usize> = rules
+/// One finding as a SARIF result; `index` maps rule ids to their place in
+/// the driver's rule list, `seen` counts fingerprints met so far.
+fn result(
+    ws: &Workspace,
+    d: &Diagnostic,
+    base: &Path,
+    index: &HashMap<String, usize>,
+    seen: &mut HashMap<u64, u32>,
+) -> Value {
+    let mut message = d.message.clone();
+    if let Some(help) = &d.help {
+        message.push_str(". Help: ");
+        message.push_str(help);
+    }
+    let related: Vec<Value> = d
+        .labels
         .iter()
+        .filter(|l| !(l.file == d.file && l.span == d.span))
         .enumerate()
-        .filter_map(|(i, r)| Some((r["id"].as_str()?, i)))
-        .collect();
-    let mut seen = HashMap::new();
-    let results: Vec<Value> = diagnostics
-        .iter()
-        .map(|d| {
-            let mut message = d.message.clone();
-            if let Some(help) = &d.help {
-                message.push_str(". Help: ");
-                message.push_str(help);
-            }
-            let related: Vec<Value> = d
-                .labels
-                .iter()
-                .filter(|l| !(l.file == d.file && l.span == d.span))
-                .enumerate()
-                .map(|(i, l)| {
-                    let mut loc = location(ws, base, l.file, &l.span);
-                    loc["id"] = json!(i);
-                    loc["message"] = json!({ "text": l.message });
-                    loc
-                })
-                .collect();
-            let mut result = json!({
-                "ruleId": d.rule,
-                "level": level(Some(d.severity)),
-                "message": { "text": message },
-                "locations": [location(ws, base, d.file, &d.span)],
-                "partialFingerprints": { "guardbandFinding/v1": fingerprint(ws, d, &mut seen) },
-            });
-            if let Some(i) = index.get(d.rule) {
-                result["ruleIndex"] = json!(i);
-            }
-            if !related.is_empty() {
-                result["relatedLocations"] = json!(related);
-            }
-            result
+        .map(|(i, l)| {
+            let mut loc = location(ws, base, l.file, &l.span);
+            loc["id"] = json!(i);
+            loc["message"] = json!({ "text": l.message });
+            loc
         })
         .collect();
+    let mut result = json!({
+        "ruleId": d.rule,
+        "level": level(Some(d.severity)),
+        "message": { "text": message },
+        "locations": [location(ws, base, d.file, &d.span)],
+        "partialFingerprints": { "guardbandFinding/v1": fingerprint(ws, d, seen) },
+    });
+    if let Some(i) = index.get(d.rule) {
+        result["ruleIndex"] = json!(i);
+    }
+    if !related.is_empty() {
+        result["relatedLocations"] = json!(related);
+    }
+    result
+}
+
+/// The log around its results, with `results` as given.
+fn document(rules: Vec<Value>, results: Vec<Value>) -> Value {
     json!({
         "$schema": "https://json.schemastore.org/sarif-2.1.0.json",
         "version": "2.1.0",
@@ -237,6 +236,60 @@ pub fn log(ws: &Workspace, diagnostics: &[Diagnostic], base: &Path) -> Value {
             "results": results,
         }]
     })
+}
+
+/// Stands in for the results while the log's frame is printed; no result
+/// can hold it (rule ids are kebab-case names).
+const RESULTS_HERE: &str = "\u{0}results go here\u{0}";
+
+/// Writes the SARIF log of one check (`base` is the repository root, see
+/// [`crate::repo::base`]) and a newline, one result at a time: memory stays
+/// constant per finding. The text is `serde_json`'s pretty form of the
+/// whole log; a test holds the two together.
+pub fn write(
+    out: &mut dyn Write,
+    ws: &Workspace,
+    diagnostics: &[Diagnostic],
+    base: &Path,
+) -> std::io::Result<()> {
+    let rules = rules();
+    let index: HashMap<String, usize> = rules
+        .iter()
+        .enumerate()
+        .filter_map(|(i, r)| Some((r["id"].as_str()?.to_string(), i)))
+        .collect();
+    let mut out = std::io::BufWriter::with_capacity(1 << 16, out);
+    if diagnostics.is_empty() {
+        serde_json::to_writer_pretty(&mut out, &document(rules, Vec::new()))?;
+        out.write_all(b"\n")?;
+        return out.flush();
+    }
+    // The frame, printed with one placeholder result, split around it.
+    let frame = serde_json::to_string_pretty(&document(rules, vec![json!(RESULTS_HERE)]))?;
+    let placeholder = serde_json::to_string(RESULTS_HERE)?;
+    let at = frame
+        .find(&placeholder)
+        .ok_or(std::io::ErrorKind::InvalidData)?;
+    let line_start = frame[..at].rfind('\n').map_or(0, |i| i + 1);
+    let indent = &frame[line_start..at];
+    out.write_all(&frame.as_bytes()[..line_start])?;
+    let mut seen = HashMap::new();
+    for (i, d) in diagnostics.iter().enumerate() {
+        if i > 0 {
+            out.write_all(b",\n")?;
+        }
+        let text = serde_json::to_string_pretty(&result(ws, d, base, &index, &mut seen))?;
+        for (j, line) in text.split('\n').enumerate() {
+            if j > 0 {
+                out.write_all(b"\n")?;
+            }
+            out.write_all(indent.as_bytes())?;
+            out.write_all(line.as_bytes())?;
+        }
+    }
+    out.write_all(&frame.as_bytes()[at + placeholder.len()..])?;
+    out.write_all(b"\n")?;
+    out.flush()
 }
 
 #[cfg(test)]

@@ -55,9 +55,45 @@ struct Evaluator<'a> {
     /// Each unit spelling met so far, parsed: a file uses a handful of
     /// units thousands of times.
     units: rustc_hash::FxHashMap<compact_str::CompactString, Result<ParsedUnit, UnitError>>,
+    /// Name indexes of the blocks with many members, so that a lookup in a
+    /// block of a thousand conductors is not a scan of a thousand keys.
+    wide: rustc_hash::FxHashMap<NodeId, MemberIndex>,
     /// Expression nodes evaluated so far, and the most allowed.
     steps: u64,
     max_steps: u64,
+}
+
+/// A block's members by name: the first field and the first child block of
+/// each key (the first wins, as in a scan in source order).
+#[derive(Default)]
+struct MemberIndex {
+    fields: rustc_hash::FxHashMap<compact_str::CompactString, usize>,
+    children: rustc_hash::FxHashMap<compact_str::CompactString, NodeId>,
+}
+
+/// Blocks with more members than this get a [`MemberIndex`]; smaller ones
+/// are scanned, which is faster than hashing for a handful of keys.
+const INDEX_MEMBERS_ABOVE: usize = 16;
+
+fn wide_blocks(model: &Model) -> rustc_hash::FxHashMap<NodeId, MemberIndex> {
+    let mut wide = rustc_hash::FxHashMap::default();
+    for (n, node) in model.nodes.iter().enumerate() {
+        if node.fields.len() + node.children.len() <= INDEX_MEMBERS_ABOVE {
+            continue;
+        }
+        let mut index = MemberIndex::default();
+        for (i, f) in node.fields.iter().enumerate() {
+            index.fields.entry(f.key.clone()).or_insert(i);
+        }
+        for &c in &node.children {
+            index
+                .children
+                .entry(model.node(c).key().into())
+                .or_insert(c);
+        }
+        wide.insert(NodeId(n as u32), index);
+    }
+    wide
 }
 
 /// Evaluates every field of every node in place, reporting problems.
@@ -87,6 +123,7 @@ pub fn evaluate(
             map
         })
         .collect();
+    let wide = wide_blocks(model);
     let mut ev = Evaluator {
         ws,
         model,
@@ -96,6 +133,7 @@ pub fn evaluate(
         visible,
         visible_by_key,
         units: Default::default(),
+        wide,
         steps: 0,
         max_steps,
     };
@@ -1174,6 +1212,33 @@ impl<'a> Evaluator<'a> {
         }
     }
 
+    /// The first field of `node` named `name`, by index.
+    fn field_named(&self, node: NodeId, name: &str) -> Option<usize> {
+        match self.wide.get(&node) {
+            Some(index) => index.fields.get(name).copied(),
+            None => self
+                .model
+                .node(node)
+                .fields
+                .iter()
+                .position(|f| f.key == name),
+        }
+    }
+
+    /// The first child block of `node` named `name`.
+    fn child_named(&self, node: NodeId, name: &str) -> Option<NodeId> {
+        match self.wide.get(&node) {
+            Some(index) => index.children.get(name).copied(),
+            None => self
+                .model
+                .node(node)
+                .children
+                .iter()
+                .copied()
+                .find(|c| self.model.node(*c).key() == name),
+        }
+    }
+
     /// Looks a path up in each enclosing block, then among visible items.
     /// On failure returns the index of the segment that failed and the names
     /// that would have been valid there.
@@ -1195,17 +1260,12 @@ impl<'a> Evaluator<'a> {
         };
         let mut scope = Some(from);
         while let Some(s) = scope {
-            let node = self.model.node(s);
-            let field_hit = !want_block && node.fields.iter().any(|f| f.key == path[0].text);
-            if field_hit
-                || node
-                    .children
-                    .iter()
-                    .any(|c| self.model.node(*c).key() == path[0].text)
-            {
+            let name = path[0].text.as_str();
+            let field_hit = !want_block && self.field_named(s, name).is_some();
+            if field_hit || self.child_named(s, name).is_some() {
                 return self.descend(s, path, corner, 0, trail);
             }
-            scope = node.parent;
+            scope = self.model.node(s).parent;
         }
         let file = self.model.node(from).file;
         if let Some(&item) = self.visible_by_key[file.0 as usize].get(path[0].text.as_str()) {
@@ -1254,27 +1314,17 @@ impl<'a> Evaluator<'a> {
         offset: usize,
         trail: &mut Vec<(Span, Symbol)>,
     ) -> Result<Target, (usize, Vec<compact_str::CompactString>)> {
-        let n = self.model.node(node);
         let seg = &path[0];
-        let child_first = path.len() > 1 || n.fields.iter().all(|f| f.key != seg.text);
-        if let Some(i) = n
-            .fields
-            .iter()
-            .position(|f| f.key == seg.text)
-            .filter(|_| !child_first)
-        {
+        let field = self.field_named(node, seg.text.as_str());
+        let child_first = path.len() > 1 || field.is_none();
+        if let Some(i) = field.filter(|_| !child_first) {
             if path.len() > 1 {
                 return Err((offset + 1, vec!["min".into(), "nom".into(), "max".into()]));
             }
             trail.push((seg.span.clone(), Symbol::Field(node, i)));
             return Ok(Target::Field(node, i, corner));
         }
-        if let Some(c) = n
-            .children
-            .iter()
-            .copied()
-            .find(|c| self.model.node(*c).key() == seg.text)
-        {
+        if let Some(c) = self.child_named(node, seg.text.as_str()) {
             trail.push((seg.span.clone(), Symbol::Node(c)));
             if path.len() == 1 {
                 return if corner.is_some() {
@@ -1285,6 +1335,7 @@ impl<'a> Evaluator<'a> {
             }
             return self.descend(c, &path[1..], corner, offset + 1, trail);
         }
+        let n = self.model.node(node);
         let mut names: Vec<compact_str::CompactString> =
             n.fields.iter().map(|f| f.key.clone()).collect();
         names.extend(n.children.iter().map(|c| self.model.node(*c).key().into()));
@@ -1334,6 +1385,21 @@ mod tests {
             close(v.lo, 0.184) && close(v.nom, 0.2) && close(v.hi, 0.216),
             "{v:?}"
         );
+    }
+
+    #[test]
+    fn names_in_a_block_of_many_members_resolve_as_in_a_small_one() {
+        // Thirty pins put the regulator above the size whose members are
+        // indexed by name; a limit still finds the regulator's `load` in the
+        // enclosing scope, and the limit's own `ratio` (2 × 5 mA = 10 mA).
+        let pins: String = (0..30).map(|i| format!("pin p{i} {{ }}  ")).collect();
+        let text = format!(
+            "regulator r {{ load = 0 mA .. 5 mA  {pins} limit l {{ ratio = 2  threshold = ratio * load.max }} }}"
+        );
+        let (model, diags) = evaluate(&text);
+        assert!(!diags.iter().any(|d| d.rule == "unknown-name"), "{diags:?}");
+        let v = value(&model, "r.l", "threshold");
+        assert!(close(v.lo, 0.010) && close(v.hi, 0.010), "{v:?}");
     }
 
     #[test]
