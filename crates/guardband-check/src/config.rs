@@ -186,6 +186,9 @@ pub struct ConfigFile {
     /// The results files read, each with its measurements and problems
     /// (pointing at [`ConfigFile::UNPLACED`] until applied).
     evidence: Vec<EvidenceText>,
+    /// Imported spec files parsed once for every check this configuration
+    /// is applied to in one run (it lives exactly as long as the run).
+    parses: std::sync::Arc<guardband_model::SharedParses>,
 }
 
 /// One results file as read.
@@ -212,6 +215,7 @@ impl ConfigFile {
                 config: Config::default(),
                 diagnostics: Vec::new(),
                 evidence: Vec::new(),
+                parses: Default::default(),
             };
         };
         let text = String::from_utf8_lossy(&bytes).into_owned();
@@ -222,6 +226,7 @@ impl ConfigFile {
             config,
             diagnostics: Vec::new(),
             evidence: Vec::new(),
+            parses: Default::default(),
         };
         for written in file.config.evidence_paths.clone() {
             let path = root.join(&written);
@@ -264,6 +269,11 @@ impl ConfigFile {
     /// The limits, for loading files before the rest is applied.
     pub fn limits(&self) -> &guardband_model::Limits {
         &self.config.limits
+    }
+
+    /// The imported files' parses shared by the checks of this run.
+    pub fn shared_parses(&self) -> &guardband_model::SharedParses {
+        &self.parses
     }
 
     /// Adds the file to `ws` (so that its problems can be shown) and

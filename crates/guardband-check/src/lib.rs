@@ -111,8 +111,14 @@ pub fn check_with_config_file(
     config_file: &ConfigFile,
 ) -> Result<Checked, (PathBuf, std::io::Error)> {
     let mut diagnostics = Vec::new();
-    let mut ws =
-        guardband_model::load_with(root, entries, read, config_file.limits(), &mut diagnostics)?;
+    let mut ws = guardband_model::load_shared(
+        root,
+        entries,
+        read,
+        config_file.limits(),
+        config_file.shared_parses(),
+        &mut diagnostics,
+    )?;
     let (config, config_diagnostics) = config_file.apply(&mut ws);
     diagnostics.extend(config_diagnostics);
     let (model, model_diagnostics) = guardband_model::check_with(&ws, &config.limits);

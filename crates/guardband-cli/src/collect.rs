@@ -110,7 +110,10 @@ pub fn guard_files(paths: &[PathBuf], root: &Path) -> Result<Found, String> {
             }
         })?;
         if meta.is_dir() {
-            walk(p, root, &mut found, 0);
+            // A real folder inside the root holds its regular files inside
+            // the root too; only links among them need resolving.
+            let inside = p.canonicalize().is_ok_and(|c| c.starts_with(root));
+            walk(p, root, inside, &mut found, 0);
         } else {
             match refusal(p, root) {
                 None => found.files.push(p.clone()),
@@ -127,7 +130,10 @@ pub fn guard_files(paths: &[PathBuf], root: &Path) -> Result<Found, String> {
 /// this only bounds absurd trees).
 const MAX_DEPTH: usize = 256;
 
-fn walk(dir: &Path, root: &Path, found: &mut Found, depth: usize) {
+/// `inside`: `dir` is known to resolve inside `root` (it is a real folder
+/// under one that does), so that its regular files are taken without
+/// resolving each (thousands of `readlink`s in a large workspace).
+fn walk(dir: &Path, root: &Path, inside: bool, found: &mut Found, depth: usize) {
     if depth > MAX_DEPTH {
         found
             .skipped
@@ -167,11 +173,15 @@ fn walk(dir: &Path, root: &Path, found: &mut Found, depth: usize) {
         };
         if kind.is_dir() {
             if !name.starts_with('.') && name != "target" {
-                walk(&path, root, found, depth + 1);
+                walk(&path, root, inside, found, depth + 1);
             }
             continue;
         }
         if path.extension().is_none_or(|e| e != "guard") {
+            continue;
+        }
+        if inside && kind.is_file() {
+            found.files.push(path);
             continue;
         }
         if kind.is_symlink()

@@ -167,10 +167,38 @@ impl Documents {
 
 /// A range of LSP positions as byte offsets into `text`, ordered and clamped.
 fn byte_range(text: &str, range: Range, encoding: Encoding) -> (usize, usize) {
-    let index = LineIndex::new(text);
-    let a = encoding.offset(&index, range.start);
-    let b = encoding.offset(&index, range.end);
+    let a = offset_of(text, range.start, encoding);
+    let b = offset_of(text, range.end, encoding);
     (a.min(b), a.max(b))
+}
+
+/// The byte offset of an LSP position, as [`Encoding::offset`] gives it on
+/// the whole text's line index, but without building one: an edit to a
+/// large document costs a scan to its line, not an index of every line.
+fn offset_of(
+    text: &str,
+    position: tower_lsp_server::ls_types::Position,
+    encoding: Encoding,
+) -> usize {
+    // Line ends as the line index counts them: `\n`, `\r\n` and a lone `\r`.
+    let bytes = text.as_bytes();
+    let mut start = 0;
+    for _ in 0..position.line {
+        let Some(i) = text[start..].find(['\n', '\r']).map(|i| start + i) else {
+            return text.len();
+        };
+        start = if bytes[i] == b'\r' && bytes.get(i + 1) == Some(&b'\n') {
+            i + 2
+        } else {
+            i + 1
+        };
+    }
+    let end = text[start..]
+        .find(['\n', '\r'])
+        .map_or(text.len(), |i| start + i);
+    let line = LineIndex::new(&text[start..end]);
+    let within = tower_lsp_server::ls_types::Position::new(0, position.character);
+    start + encoding.offset(&line, within)
 }
 
 #[cfg(test)]
@@ -188,6 +216,26 @@ mod tests {
 
     fn uri() -> Uri {
         "file:///nowhere/a.guard".parse().expect("uri")
+    }
+
+    #[test]
+    fn offsets_without_an_index_equal_those_of_the_whole_index() {
+        // Every line end kind, non-ASCII text, positions past a line's end
+        // and past the last line.
+        let text = "a = 1 µF\r\nb 𝄞 c\rd\n\ne = ± 2 %\n";
+        let index = LineIndex::new(text);
+        for encoding in [Encoding::Utf8, Encoding::Utf16] {
+            for line in 0..7 {
+                for character in 0..16 {
+                    let p = Position::new(line, character);
+                    assert_eq!(
+                        super::offset_of(text, p, encoding),
+                        encoding.offset(&index, p),
+                        "{encoding:?} {line}:{character}"
+                    );
+                }
+            }
+        }
     }
 
     #[test]

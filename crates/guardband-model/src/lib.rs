@@ -28,7 +28,9 @@ pub use read::{is_link_loop, read_source};
 pub use schema::BlockKind;
 pub use suggest::{did_you_mean, edit_distance};
 pub use value::{Bounds, Corner, SourceId, Spread, Term, ToleranceSource, Value, ValueError};
-pub use workspace::{Read, SourceFile, Workspace, decode, load, load_with, normalize};
+pub use workspace::{
+    Read, SharedParses, SourceFile, Workspace, decode, load, load_shared, load_with, normalize,
+};
 
 use guardband_syntax::SyntaxError;
 

@@ -16,7 +16,9 @@ pub struct SourceFile {
     pub display: String,
     /// The text without a leading byte-order mark.
     pub text: String,
-    pub parse: Parse,
+    /// Shared with other checks of the same run when the file is an import
+    /// they have in common (see [`SharedParses`]).
+    pub parse: std::sync::Arc<Parse>,
     /// Built on first use ([`SourceFile::line_index`]): only files that a
     /// finding, hover or edit points into need one.
     pub lines: std::sync::OnceLock<LineIndex>,
@@ -69,6 +71,11 @@ impl Workspace {
 
     /// Appends a file with its display path and line index; returns its id.
     pub(crate) fn push_file(&mut self, path: PathBuf, text: String, parse: Parse) -> FileId {
+        self.push_shared(path, text, std::sync::Arc::new(parse))
+    }
+
+    /// [`Workspace::push_file`] with a parse that may be shared.
+    fn push_shared(&mut self, path: PathBuf, text: String, parse: std::sync::Arc<Parse>) -> FileId {
         let id = FileId(self.files.len() as u32);
         let display = path
             .strip_prefix(&self.root)
@@ -192,6 +199,57 @@ pub fn load_with(
     limits: &Limits,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
+    load_shared(
+        root,
+        entries,
+        read,
+        limits,
+        &SharedParses::default(),
+        diagnostics,
+    )
+}
+
+/// Imported files parsed once for all the checks of one run: the many
+/// entry files of a folder check usually import the same process file, and
+/// each check would otherwise read it into a tree of its own. Keyed by path
+/// and held to the exact text, so a file that changed is parsed again.
+/// Entry files are not kept (each is checked once).
+#[derive(Debug, Default)]
+pub struct SharedParses {
+    by_path: std::sync::Mutex<std::collections::HashMap<PathBuf, (String, std::sync::Arc<Parse>)>>,
+}
+
+impl SharedParses {
+    /// The parse of `text` at `path`, from an earlier check if it read the
+    /// same text there, else parsed now and kept.
+    fn parse(&self, path: &Path, text: &str, max_nesting: usize) -> std::sync::Arc<Parse> {
+        if let Ok(map) = self.by_path.lock()
+            && let Some((seen, parse)) = map.get(path)
+            && seen == text
+        {
+            return std::sync::Arc::clone(parse);
+        }
+        let parse = std::sync::Arc::new(parse_with(text, max_nesting));
+        if let Ok(mut map) = self.by_path.lock() {
+            map.insert(
+                path.to_path_buf(),
+                (text.to_string(), std::sync::Arc::clone(&parse)),
+            );
+        }
+        parse
+    }
+}
+
+/// [`load_with`], with imported files' parses shared through `shared`
+/// across the checks of one run.
+pub fn load_shared(
+    root: &Path,
+    entries: &[PathBuf],
+    read: &Read,
+    limits: &Limits,
+    shared: &SharedParses,
+    diagnostics: &mut Vec<Diagnostic>,
+) -> Result<Workspace, (PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
     let canonical_or_known = |path: &Path| -> std::io::Result<PathBuf> {
         match path.canonicalize() {
@@ -218,7 +276,7 @@ pub fn load_with(
             continue;
         }
         let bytes = read(&path, limits.max_file_bytes).map_err(|e| (entry.clone(), e))?;
-        let id = add_file(&mut ws, path, &bytes, limits, diagnostics);
+        let id = add_file(&mut ws, path, &bytes, limits, None, diagnostics);
         queue.push_back((id, 0));
     }
     while let Some((id, depth)) = queue.pop_front() {
@@ -324,7 +382,14 @@ pub fn load_with(
                 }
                 None => match read(&canonical, limits.max_file_bytes) {
                     Ok(bytes) => {
-                        let t = add_file(&mut ws, canonical, &bytes, limits, diagnostics);
+                        let t = add_file(
+                            &mut ws,
+                            canonical,
+                            &bytes,
+                            limits,
+                            Some(shared),
+                            diagnostics,
+                        );
                         queue.push_back((t, depth + 1));
                         t
                     }
@@ -360,6 +425,7 @@ fn add_file(
     path: PathBuf,
     bytes: &[u8],
     limits: &Limits,
+    shared: Option<&SharedParses>,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> FileId {
     let id = FileId(ws.files.len() as u32);
@@ -388,7 +454,10 @@ fn add_file(
     }
     let (text, parsed) = match decode(bytes) {
         Ok(text) => {
-            let parsed = parse_with(&text, limits.max_nesting);
+            let parsed = match shared {
+                Some(shared) => shared.parse(&path, &text, limits.max_nesting),
+                None => std::sync::Arc::new(parse_with(&text, limits.max_nesting)),
+            };
             (text, parsed)
         }
         Err((text, offset, message)) => {
@@ -402,10 +471,10 @@ fn add_file(
                     .primary("here")
                     .help("guardband reads UTF-8 text; the file was not checked"),
             );
-            (text, Parse::default())
+            (text, std::sync::Arc::new(Parse::default()))
         }
     };
-    ws.push_file(path, text, parsed)
+    ws.push_shared(path, text, parsed)
 }
 
 /// Reports each import cycle once, at the `use` that closes it.
@@ -475,5 +544,60 @@ fn report_cycles(ws: &Workspace, diagnostics: &mut Vec<Diagnostic>) {
         if marks[f.id.0 as usize] == Mark::New {
             visit(ws, f.id, &mut marks, &mut stack, diagnostics);
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{SharedParses, load_shared};
+    use crate::Limits;
+    use std::path::Path;
+    use std::sync::Arc;
+
+    /// The parse of `p.guard` as loaded by a check of `entry` under `root`.
+    fn import_parse(
+        root: &Path,
+        entry: &str,
+        shared: &SharedParses,
+    ) -> Arc<guardband_syntax::Parse> {
+        let mut diagnostics = Vec::new();
+        let ws = load_shared(
+            root,
+            &[root.join(entry)],
+            &crate::read_source,
+            &Limits::default(),
+            shared,
+            &mut diagnostics,
+        )
+        .expect("load");
+        let import = ws
+            .files
+            .iter()
+            .find(|f| f.path.ends_with("p.guard"))
+            .expect("the import is loaded");
+        Arc::clone(&import.parse)
+    }
+
+    #[test]
+    fn an_import_is_parsed_once_per_run_and_again_when_its_text_changes() {
+        let root = std::env::temp_dir().join(format!("guardband-shared-{}", std::process::id()));
+        std::fs::create_dir_all(&root).expect("dir");
+        let write = |name: &str, text: &str| std::fs::write(root.join(name), text).expect("write");
+        write("a.guard", "use \"p.guard\"\nregulator a { }\n");
+        write("b.guard", "use \"p.guard\"\nregulator b { }\n");
+        write("p.guard", "process p { }\n");
+        let shared = SharedParses::default();
+        let from_a = import_parse(&root, "a.guard", &shared);
+        let from_b = import_parse(&root, "b.guard", &shared);
+        assert!(Arc::ptr_eq(&from_a, &from_b), "one parse for both entries");
+        write("p.guard", "process p { spread s = ± 5 % }\n");
+        let changed = import_parse(&root, "b.guard", &shared);
+        assert!(
+            !Arc::ptr_eq(&from_a, &changed),
+            "a changed text is parsed again"
+        );
+        // Entry files are not kept: only the import is.
+        assert_eq!(shared.by_path.lock().map(|m| m.len()).unwrap_or(0), 1);
+        let _ = std::fs::remove_dir_all(&root);
     }
 }

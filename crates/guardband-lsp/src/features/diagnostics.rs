@@ -16,6 +16,10 @@ pub fn convert(
     related_information: bool,
 ) -> Vec<Diagnostic> {
     let ws = &analysis.checked.ws;
+    // A file without findings needs no line index (most files, most edits).
+    if !analysis.checked.diagnostics.iter().any(|d| d.file == file) {
+        return Vec::new();
+    }
     let index = ws.file(file).line_index();
     analysis
         .checked
