@@ -142,34 +142,73 @@ pub fn human(
     out.flush()
 }
 
-fn position(ws: &Workspace, file: guardband_model::FileId, offset: usize) -> serde_json::Value {
+/// A place in a file as the JSON output shows it (1-based, code points).
+/// The fields of these types are in sorted order, as `serde_json` prints a
+/// map, so that the streamed text equals the pretty form of the document.
+#[derive(serde::Serialize)]
+struct Position {
+    column: u64,
+    line: u64,
+}
+
+#[derive(serde::Serialize)]
+struct Range {
+    end: Position,
+    start: Position,
+}
+
+#[derive(serde::Serialize)]
+struct JsonLabel<'a> {
+    file: &'a str,
+    message: &'a str,
+    range: Range,
+}
+
+/// One finding as its JSON object, borrowing its texts.
+#[derive(serde::Serialize)]
+struct JsonItem<'a> {
+    file: &'a str,
+    help: Option<&'a str>,
+    labels: Vec<JsonLabel<'a>>,
+    message: &'a str,
+    range: Range,
+    rule: &'a str,
+    severity: &'a str,
+}
+
+fn position(ws: &Workspace, file: guardband_model::FileId, offset: usize) -> Position {
     let p = ws.file(file).line_index().line_col(offset);
-    serde_json::json!({ "line": p.line + 1, "column": p.chars + 1 })
+    Position {
+        column: u64::from(p.chars) + 1,
+        line: u64::from(p.line) + 1,
+    }
 }
 
-fn range(
-    ws: &Workspace,
-    file: guardband_model::FileId,
-    span: &std::ops::Range<usize>,
-) -> serde_json::Value {
-    serde_json::json!({ "start": position(ws, file, span.start), "end": position(ws, file, span.end) })
+fn range(ws: &Workspace, file: guardband_model::FileId, span: &std::ops::Range<usize>) -> Range {
+    Range {
+        end: position(ws, file, span.end),
+        start: position(ws, file, span.start),
+    }
 }
 
-/// One finding as its JSON object.
-fn json_item(ws: &Workspace, d: &Diagnostic) -> serde_json::Value {
-    serde_json::json!({
-        "rule": d.rule,
-        "severity": d.severity.as_str(),
-        "file": ws.file(d.file).display,
-        "range": range(ws, d.file, &d.span),
-        "message": d.message,
-        "labels": d.labels.iter().map(|l| serde_json::json!({
-            "file": ws.file(l.file).display,
-            "range": range(ws, l.file, &l.span),
-            "message": l.message,
-        })).collect::<Vec<_>>(),
-        "help": d.help,
-    })
+fn json_item<'a>(ws: &'a Workspace, d: &'a Diagnostic) -> JsonItem<'a> {
+    JsonItem {
+        file: &ws.file(d.file).display,
+        help: d.help.as_deref(),
+        labels: d
+            .labels
+            .iter()
+            .map(|l| JsonLabel {
+                file: &ws.file(l.file).display,
+                message: &l.message,
+                range: range(ws, l.file, &l.span),
+            })
+            .collect(),
+        message: &d.message,
+        range: range(ws, d.file, &d.span),
+        rule: d.rule,
+        severity: d.severity.as_str(),
+    }
 }
 
 /// Writes the JSON document of a check (schema in the README) and a
@@ -185,15 +224,18 @@ pub fn json(
 ) -> std::io::Result<()> {
     let mut out = std::io::BufWriter::with_capacity(1 << 16, out);
     out.write_all(b"{\n  \"diagnostics\": [")?;
+    // One buffer for every finding's text.
+    let mut text = Vec::with_capacity(4096);
     for (i, d) in diagnostics.iter().enumerate() {
         out.write_all(if i == 0 { b"\n" } else { b",\n" })?;
-        let text = serde_json::to_string_pretty(&json_item(ws, d))?;
-        for (j, line) in text.split('\n').enumerate() {
+        text.clear();
+        serde_json::to_writer_pretty(&mut text, &json_item(ws, d))?;
+        for (j, line) in text.split(|&b| b == b'\n').enumerate() {
             if j > 0 {
                 out.write_all(b"\n")?;
             }
             out.write_all(b"    ")?;
-            out.write_all(line.as_bytes())?;
+            out.write_all(line)?;
         }
     }
     if !diagnostics.is_empty() {
