@@ -3,7 +3,7 @@
 //! the current the limit lets through, one `conductor-under-rated` error
 //! apiece (with three labels and a help line, like most findings).
 
-use crate::{Generated, PROCESS, params, regulator};
+use crate::{Generated, PROCESS, fresh_workspace, params, regulator};
 use std::path::Path;
 
 /// Conductors per regulator: enough that the findings dominate the check.
@@ -13,13 +13,7 @@ const CONDUCTORS: usize = 1_000;
 /// whole regulators of [`CONDUCTORS`] conductors) into files of ten
 /// regulators under `root`, and a configuration that lets them all show.
 pub fn generate_findings(root: &Path, findings: usize) -> std::io::Result<Generated> {
-    let _ = std::fs::remove_dir_all(root);
-    std::fs::create_dir_all(root)?;
-    std::fs::write(
-        root.join("guardband.toml"),
-        "[limits]\nmax_file_size = \"256 MiB\"\nmax_findings_per_rule = 10000000\n",
-    )?;
-    std::fs::write(root.join("fab.guard"), PROCESS)?;
+    fresh_workspace(root, "max_findings_per_rule = 10000000\n")?;
     let narrow: String = (0..CONDUCTORS)
         .map(|c| {
             format!(

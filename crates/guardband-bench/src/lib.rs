@@ -212,16 +212,22 @@ pub struct Generated {
     pub regulators: usize,
 }
 
-/// Writes `regulators` regulators into `files` files under `root` (which is
-/// emptied first), each file importing the shared process file.
-pub fn generate(root: &Path, regulators: usize, files: usize) -> std::io::Result<Generated> {
+/// Empties `root` and writes its `guardband.toml` (large files allowed,
+/// plus `limits`, lines under `[limits]`) and the shared process file.
+pub fn fresh_workspace(root: &Path, limits: &str) -> std::io::Result<()> {
     let _ = std::fs::remove_dir_all(root);
     std::fs::create_dir_all(root)?;
     std::fs::write(
         root.join("guardband.toml"),
-        "[limits]\nmax_file_size = \"256 MiB\"\n",
+        format!("[limits]\nmax_file_size = \"256 MiB\"\n{limits}"),
     )?;
-    std::fs::write(root.join("fab.guard"), PROCESS)?;
+    std::fs::write(root.join("fab.guard"), PROCESS)
+}
+
+/// Writes `regulators` regulators into `files` files under `root` (which is
+/// emptied first), each file importing the shared process file.
+pub fn generate(root: &Path, regulators: usize, files: usize) -> std::io::Result<Generated> {
+    fresh_workspace(root, "")?;
     let mut spec_bytes = PROCESS.len();
     let mut entries = Vec::new();
     let mut twins = Vec::with_capacity(regulators);

@@ -82,6 +82,8 @@ pub fn check_each_with_evidence(
 ) -> Result<Findings, (PathBuf, std::io::Error)> {
     let root = &root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
     let mut config_file = ConfigFile::read(root, read);
+    // The entries' checks share the parses of the files they import.
+    config_file.share_imports();
     for path in evidence {
         config_file
             .add_evidence(path, read)

@@ -187,8 +187,9 @@ pub struct ConfigFile {
     /// (pointing at [`ConfigFile::UNPLACED`] until applied).
     evidence: Vec<EvidenceText>,
     /// Imported spec files parsed once for every check this configuration
-    /// is applied to in one run (it lives exactly as long as the run).
-    parses: std::sync::Arc<guardband_model::SharedParses>,
+    /// is applied to in one run, once [`ConfigFile::share_imports`] asked
+    /// for it (a single check, as the server's on each edit, shares nothing).
+    parses: Option<std::sync::Arc<guardband_model::SharedParses>>,
 }
 
 /// One results file as read.
@@ -215,7 +216,7 @@ impl ConfigFile {
                 config: Config::default(),
                 diagnostics: Vec::new(),
                 evidence: Vec::new(),
-                parses: Default::default(),
+                parses: None,
             };
         };
         let text = String::from_utf8_lossy(&bytes).into_owned();
@@ -226,7 +227,7 @@ impl ConfigFile {
             config,
             diagnostics: Vec::new(),
             evidence: Vec::new(),
-            parses: Default::default(),
+            parses: None,
         };
         for written in file.config.evidence_paths.clone() {
             let path = root.join(&written);
@@ -271,9 +272,15 @@ impl ConfigFile {
         &self.config.limits
     }
 
-    /// The imported files' parses shared by the checks of this run.
-    pub fn shared_parses(&self) -> &guardband_model::SharedParses {
-        &self.parses
+    /// Shares imported files' parses among the checks this configuration
+    /// is applied to from now on (a run of many checks).
+    pub fn share_imports(&mut self) {
+        self.parses.get_or_insert_with(Default::default);
+    }
+
+    /// The imported files' parses shared by the checks of this run, if any.
+    pub fn shared_parses(&self) -> Option<&guardband_model::SharedParses> {
+        self.parses.as_deref()
     }
 
     /// Adds the file to `ws` (so that its problems can be shown) and

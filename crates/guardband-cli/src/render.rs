@@ -211,6 +211,27 @@ fn json_item<'a>(ws: &'a Workspace, d: &'a Diagnostic) -> JsonItem<'a> {
     }
 }
 
+/// Writes `value` in `serde_json`'s pretty form with every line indented by
+/// `indent`, as it appears nested in a larger pretty-printed document;
+/// `buffer` is scratch space, reused from one value to the next.
+pub fn write_nested(
+    out: &mut impl Write,
+    buffer: &mut Vec<u8>,
+    value: &impl serde::Serialize,
+    indent: &[u8],
+) -> std::io::Result<()> {
+    buffer.clear();
+    serde_json::to_writer_pretty(&mut *buffer, value)?;
+    for (j, line) in buffer.split(|&b| b == b'\n').enumerate() {
+        if j > 0 {
+            out.write_all(b"\n")?;
+        }
+        out.write_all(indent)?;
+        out.write_all(line)?;
+    }
+    Ok(())
+}
+
 /// Writes the JSON document of a check (schema in the README) and a
 /// newline, one finding at a time through a buffer: memory stays constant
 /// per finding however many there are. The text is the same as
@@ -228,15 +249,7 @@ pub fn json(
     let mut text = Vec::with_capacity(4096);
     for (i, d) in diagnostics.iter().enumerate() {
         out.write_all(if i == 0 { b"\n" } else { b",\n" })?;
-        text.clear();
-        serde_json::to_writer_pretty(&mut text, &json_item(ws, d))?;
-        for (j, line) in text.split(|&b| b == b'\n').enumerate() {
-            if j > 0 {
-                out.write_all(b"\n")?;
-            }
-            out.write_all(b"    ")?;
-            out.write_all(line)?;
-        }
+        write_nested(&mut out, &mut text, &json_item(ws, d), b"    ")?;
     }
     if !diagnostics.is_empty() {
         out.write_all(b"\n  ")?;

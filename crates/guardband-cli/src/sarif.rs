@@ -274,18 +274,13 @@ pub fn write(
     let indent = &frame[line_start..at];
     out.write_all(&frame.as_bytes()[..line_start])?;
     let mut seen = HashMap::new();
+    let mut text = Vec::with_capacity(4096);
     for (i, d) in diagnostics.iter().enumerate() {
         if i > 0 {
             out.write_all(b",\n")?;
         }
-        let text = serde_json::to_string_pretty(&result(ws, d, base, &index, &mut seen))?;
-        for (j, line) in text.split('\n').enumerate() {
-            if j > 0 {
-                out.write_all(b"\n")?;
-            }
-            out.write_all(indent.as_bytes())?;
-            out.write_all(line.as_bytes())?;
-        }
+        let result = result(ws, d, base, &index, &mut seen);
+        crate::render::write_nested(&mut out, &mut text, &result, indent.as_bytes())?;
     }
     out.write_all(&frame.as_bytes()[at + placeholder.len()..])?;
     out.write_all(b"\n")?;

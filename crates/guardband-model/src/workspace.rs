@@ -199,14 +199,7 @@ pub fn load_with(
     limits: &Limits,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
-    load_shared(
-        root,
-        entries,
-        read,
-        limits,
-        &SharedParses::default(),
-        diagnostics,
-    )
+    load_shared(root, entries, read, limits, None, diagnostics)
 }
 
 /// Imported files parsed once for all the checks of one run: the many
@@ -241,13 +234,13 @@ impl SharedParses {
 }
 
 /// [`load_with`], with imported files' parses shared through `shared`
-/// across the checks of one run.
+/// across the checks of one run (`None`: one check, nothing to share).
 pub fn load_shared(
     root: &Path,
     entries: &[PathBuf],
     read: &Read,
     limits: &Limits,
-    shared: &SharedParses,
+    shared: Option<&SharedParses>,
     diagnostics: &mut Vec<Diagnostic>,
 ) -> Result<Workspace, (PathBuf, std::io::Error)> {
     let root = root.canonicalize().map_err(|e| (root.to_path_buf(), e))?;
@@ -382,14 +375,7 @@ pub fn load_shared(
                 }
                 None => match read(&canonical, limits.max_file_bytes) {
                     Ok(bytes) => {
-                        let t = add_file(
-                            &mut ws,
-                            canonical,
-                            &bytes,
-                            limits,
-                            Some(shared),
-                            diagnostics,
-                        );
+                        let t = add_file(&mut ws, canonical, &bytes, limits, shared, diagnostics);
                         queue.push_back((t, depth + 1));
                         t
                     }
@@ -566,7 +552,7 @@ mod tests {
             &[root.join(entry)],
             &crate::read_source,
             &Limits::default(),
-            shared,
+            Some(shared),
             &mut diagnostics,
         )
         .expect("load");
